@@ -1,0 +1,254 @@
+"""The ``.tinfer`` accessor on pandas DataFrames and Series.
+
+Thin by design: it picks columns, drops missing values, splits groups and hands
+summaries to the core. pandas builds a new accessor on every attribute access, so the
+constructor only checks and stores the object.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Hashable, Sequence
+
+import pandas as pd
+
+from . import _frames
+from ._build import build, group_stats
+from ._errors import DataError
+from .core.summary import Summary
+from .results import TResult
+
+
+def _summary(sample: _frames.Sample) -> Summary:
+    return Summary.of(sample.values)
+
+
+def _one_sample(sample: _frames.Sample, variable, *, func, **opts) -> TResult:
+    return build(
+        "one-sample",
+        (_summary(sample),),
+        func=func,
+        variable=variable,
+        labels=(sample.label,),
+        n_missing=(sample.n_missing,),
+        samples=(sample.values,),
+        **opts,
+    )
+
+
+def _paired(a: _frames.Sample, b: _frames.Sample, dropped: int, variable, *, func, **opts):
+    diff = a.values - b.values
+    extra = (group_stats(a.label, _summary(a)), group_stats(b.label, _summary(b)))
+    return build(
+        "paired",
+        (Summary.of(diff),),
+        func=func,
+        variable=variable,
+        labels=(a.label, b.label),
+        n_missing=(dropped,),
+        extra_groups=extra,
+        samples=(diff,),
+        **opts,
+    )
+
+
+def _two_sample(a: _frames.Sample, b: _frames.Sample, variable, *, func, **opts) -> TResult:
+    return build(
+        "two-sample",
+        (_summary(a), _summary(b)),
+        func=func,
+        variable=variable,
+        labels=(a.label, b.label),
+        n_missing=(a.n_missing, b.n_missing),
+        samples=(a.values, b.values),
+        **opts,
+    )
+
+
+def _is_pair(x) -> bool:
+    return isinstance(x, list | tuple) and len(x) == 2
+
+
+@pd.api.extensions.register_dataframe_accessor("tinfer")
+class TinferFrameAccessor:
+    """t inference on the columns of a DataFrame: ``df.tinfer.one_sample(...)`` and friends."""
+
+    def __init__(self, obj: pd.DataFrame) -> None:
+        self._obj = obj
+
+    def one_sample(
+        self,
+        column: Hashable,
+        *,
+        null: float = 0.0,
+        side: str = "two-sided",
+        level: float = 0.95,
+        units: str | None = None,
+    ) -> TResult:
+        """Test the mean of ``column`` against the reference value ``null``.
+
+        Parameters
+        ----------
+        column : column label
+            The measurements. Missing values are dropped and counted.
+        null : float, default 0
+            The hypothesised mean (a target, a specification, a reference value).
+        side : {"two-sided", "upper", "lower"}
+            The alternative: the mean differs from, is greater than, or is less than ``null``.
+        level : float, default 0.95
+            Confidence level of the interval; the test's significance level is ``1 - level``.
+        units : str, optional
+            Units of the measurements, shown next to estimates.
+
+        Returns
+        -------
+        TResult
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"fill_g": [501.2, 499.8, 502.4, 500.9, 501.7, 500.3]})
+        >>> r = df.tinfer.one_sample("fill_g", null=500)
+        >>> round(r.estimate, 3), round(r.t, 3), round(r.p, 4)
+        (501.05, 2.737, 0.0409)
+        """
+        sample = _frames.one_column(self._obj, column)
+        return _one_sample(
+            sample, str(column), func="one_sample", null=null, side=side, level=level, units=units
+        )
+
+    def two_sample(
+        self,
+        column: Hashable | Sequence[Hashable],
+        by: Hashable | None = None,
+        *,
+        groups: Sequence | None = None,
+        null: float = 0.0,
+        side: str = "two-sided",
+        level: float = 0.95,
+        pooled: bool = False,
+        units: str | None = None,
+    ) -> TResult:
+        """Compare the means of two independent groups (Welch by default).
+
+        Parameters
+        ----------
+        column : column label, or a pair of labels
+            The measurements in long form, split by ``by``; or two columns, one per group.
+        by : column label, optional
+            The grouping column for long data. It must have two levels unless ``groups``
+            names the two to compare.
+        groups : (first, second), optional
+            The two levels to compare and their order: the estimate is first minus second.
+            Without it the two levels are taken in sorted order.
+        null : float, default 0
+            The hypothesised difference (first minus second).
+        side : {"two-sided", "upper", "lower"}
+            "upper": the first mean exceeds the second by more than ``null``.
+        level : float, default 0.95
+            Confidence level.
+        pooled : bool, default False
+            True for Student's equal-variance test; False for Welch's test.
+        units : str, optional
+            Units of the measurements.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"kg": [5.2, 4.8, 6.1, 5.5, 4.1, 4.4, 3.9, 4.6],
+        ...                    "plot": ["drip"] * 4 + ["furrow"] * 4})
+        >>> r = df.tinfer.two_sample("kg", by="plot")
+        >>> r.comparison, round(r.estimate, 3), round(r.df, 2)
+        ('drip minus furrow', 1.15, 4.75)
+        """
+        opts = dict(null=null, side=side, level=level, pooled=pooled, units=units)
+        if by is None:
+            if not _is_pair(column):
+                raise DataError(
+                    "two_sample needs either by= (a grouping column) or a pair of columns, "
+                    f"one per group. Got column={column!r} and no by."
+                )
+            a, b = (_frames.one_column(self._obj, c) for c in column)
+            return _two_sample(a, b, f"{column[0]} vs {column[1]}", func="two_sample", **opts)
+        a, b = _frames.two_groups(self._obj, column, by, groups)
+        return _two_sample(a, b, str(column), func="two_sample", **opts)
+
+    def paired(
+        self,
+        first: Hashable,
+        second: Hashable | None = None,
+        *,
+        by: Hashable | None = None,
+        subject: Hashable | None = None,
+        groups: Sequence | None = None,
+        null: float = 0.0,
+        side: str = "two-sided",
+        level: float = 0.95,
+        units: str | None = None,
+    ) -> TResult:
+        """Paired comparison: the mean of within-unit differences, first minus second.
+
+        Wide data: ``paired("before", "after")``, one row per unit. Long data:
+        ``paired("score", by="visit", subject="unit_id")``, one row per unit and
+        condition; pairs are matched by ``subject``. Rows missing either value of a
+        pair are dropped and counted.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"before": [12.1, 11.4, 13.0, 12.7], "after": [11.2, 11.0, 12.1, 12.5]})
+        >>> r = df.tinfer.paired("before", "after")
+        >>> r.comparison, round(r.estimate, 3)
+        ('before minus after', 0.6)
+        """
+        opts = dict(null=null, side=side, level=level, units=units)
+        if by is None and subject is None:
+            if second is None:
+                raise DataError(
+                    "paired needs two columns (wide data) or by= and subject= (long data)."
+                )
+            a, b, dropped = _frames.paired_wide(self._obj, first, second)
+            variable = f"{first} vs {second}"
+        else:
+            if by is None or subject is None or second is not None:
+                raise DataError(
+                    "Long paired data need one value column plus by= (the condition column) and "
+                    "subject= (the unit id), e.g. paired('score', by='visit', subject='unit_id')."
+                )
+            a, b, dropped = _frames.paired_long(self._obj, first, by, subject, groups)
+            variable = str(first)
+        return _paired(a, b, dropped, variable, func="paired", **opts)
+
+
+@pd.api.extensions.register_series_accessor("tinfer")
+class TinferSeriesAccessor:
+    """t inference on one Series: ``s.tinfer.one_sample(null=...)``."""
+
+    def __init__(self, obj: pd.Series) -> None:
+        self._obj = obj
+
+    def one_sample(
+        self,
+        *,
+        null: float = 0.0,
+        side: str = "two-sided",
+        level: float = 0.95,
+        units: str | None = None,
+    ) -> TResult:
+        """Test the mean of the Series against ``null``; see ``DataFrame.tinfer.one_sample``.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> r = pd.Series([9.8, 10.4, 10.1, 9.7, 10.6], name="ohms").tinfer.one_sample(null=10)
+        >>> round(r.estimate, 2), r.variable
+        (10.12, 'ohms')
+        """
+        name = "value" if self._obj.name is None else str(self._obj.name)
+        what = f"Series {name!r}"
+        sample = _frames.finite(_frames.to_float(self._obj, what), name, what)
+        return _one_sample(
+            sample, name, func="one_sample", null=null, side=side, level=level, units=units
+        )
+
+
+__all__ = ["TinferFrameAccessor", "TinferSeriesAccessor"]

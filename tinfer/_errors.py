@@ -1,0 +1,19 @@
+"""Error classes. Each also inherits from the built-in error people already catch."""
+
+from __future__ import annotations
+
+
+class TinferError(ValueError):
+    """Base class for every error tinfer raises on purpose."""
+
+
+class ParameterError(TinferError):
+    """A keyword argument has a value tinfer cannot use."""
+
+
+class DataError(TinferError):
+    """The data cannot support the requested test (missing column, no spread, ...)."""
+
+
+class MissingDependencyError(TinferError, ImportError):
+    """An optional package is needed for this feature and is not installed."""

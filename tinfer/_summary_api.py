@@ -1,0 +1,100 @@
+"""Tests from published summary statistics: ``tinfer.from_summary``."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+
+from ._build import build
+from ._errors import ParameterError
+from .core.summary import Summary
+from .results import TResult
+
+
+def _is_seq(x) -> bool:
+    return isinstance(x, Sequence | np.ndarray) and not isinstance(x, str)
+
+
+def from_summary(
+    n,
+    mean,
+    sd,
+    *,
+    null: float = 0.0,
+    side: str = "two-sided",
+    level: float = 0.95,
+    pooled: bool = False,
+    paired: bool = False,
+    labels: Sequence[str] | None = None,
+    variable: str = "value",
+    units: str | None = None,
+) -> TResult:
+    """Run a t procedure from published counts, means and standard deviations.
+
+    Scalars give a one-sample test; pairs ``(first, second)`` give a two-sample test of
+    first minus second (Welch unless ``pooled``). For a paired design pass the summary of
+    the differences with ``paired=True`` (a paired test is a one-sample test on them).
+    Standard deviations use the n - 1 denominator.
+
+    Parameters
+    ----------
+    n, mean, sd : float or pair of floats
+        Sample size, mean and standard deviation (per group for two samples).
+    null, side, level, pooled, units
+        As for the DataFrame methods.
+    paired : bool, default False
+        The scalars describe within-unit differences.
+    labels : sequence of str, optional
+        Names of the groups (or of the two conditions, for paired differences).
+    variable : str, default "value"
+        What was measured.
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=(12, 15), mean=(5.1, 4.3), sd=(1.2, 1.5))
+    >>> round(r.t, 4), round(r.df, 3), round(r.p, 4)
+    (1.5396, 24.998, 0.1362)
+    """
+    func = "from_summary"
+    shapes = [_is_seq(v) for v in (n, mean, sd)]
+    if any(shapes) and not all(shapes):
+        raise ParameterError(
+            "The 'n', 'mean' and 'sd' parameters of from_summary must all be numbers (one "
+            f"sample) or all be pairs (two samples). Got n={n!r}, mean={mean!r}, sd={sd!r} instead."
+        )
+    opts = dict(func=func, null=null, side=side, level=level, units=units, variable=variable)
+    if not any(shapes):
+        for name, v in (("n", n), ("mean", mean), ("sd", sd)):
+            _check_number(name, v, func)
+        s = Summary.from_moments(float(n), float(mean), float(sd))
+        if paired:
+            labs = tuple(labels) if labels is not None else ("first", "second")
+            return build("paired", (s,), labels=labs, **opts)
+        return build("one-sample", (s,), labels=tuple(labels or (variable,)), **opts)
+    for name, v in (("n", n), ("mean", mean), ("sd", sd)):
+        if len(v) != 2:
+            raise ParameterError(
+                f"The {name!r} parameter of from_summary must be a number or a pair. Got {v!r} instead."
+            )
+        for item in v:
+            _check_number(name, item, func)
+    if paired:
+        raise ParameterError(
+            "The 'paired' parameter of from_summary needs the summary of the differences "
+            "(scalars), not two groups. Got pairs instead."
+        )
+    s1 = Summary.from_moments(float(n[0]), float(mean[0]), float(sd[0]))
+    s2 = Summary.from_moments(float(n[1]), float(mean[1]), float(sd[1]))
+    labs = tuple(labels) if labels is not None else ("first", "second")
+    return build("two-sample", (s1, s2), labels=labs, pooled=pooled, **opts)
+
+
+def _check_number(name, v, func) -> None:
+    ok = isinstance(v, int | float | np.integer | np.floating) and not isinstance(v, bool)
+    if not ok or not np.isfinite(v) or (name == "sd" and v < 0) or (name == "n" and v < 1):
+        what = {"n": "a count of at least 1", "sd": "a non-negative number"}.get(
+            name, "a finite number"
+        )
+        raise ParameterError(f"The {name!r} parameter of {func} must be {what}. Got {v!r} instead.")
