@@ -195,7 +195,8 @@ class TinferFrameAccessor:
         Examples
         --------
         >>> import pandas as pd, tinfer
-        >>> df = pd.DataFrame({"before": [12.1, 11.4, 13.0, 12.7], "after": [11.2, 11.0, 12.1, 12.5]})
+        >>> df = pd.DataFrame({"before": [12.1, 11.4, 13.0, 12.7],
+        ...                    "after": [11.2, 11.0, 12.1, 12.5]})
         >>> r = df.tinfer.paired("before", "after")
         >>> r.comparison, round(r.estimate, 3)
         ('before minus after', 0.6)

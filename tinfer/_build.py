@@ -87,7 +87,9 @@ def build(
         c = procedures.two_sample(a, b, null=null, level=level, side=side, pooled=pooled)
         comparison = f"{labels[0]} minus {labels[1]}"
         method = METHODS["pooled" if pooled else "welch"]
-        groups = tuple(group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, n_missing))
+        groups = tuple(
+            group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, n_missing, strict=True)
+        )
     else:
         (s,) = summaries
         what = f"the differences {labels[0]} minus {labels[1]}" if design == "paired" else variable

@@ -33,7 +33,10 @@ def fmt_p(p: float, log_p: float | None = None) -> str:
 
 
 def decimals_for(se: float) -> int:
-    """Decimals that show a standard error to two significant digits (common practice, no source)."""
+    """Decimals that show a standard error to two significant digits.
+
+    Common practice, no source.
+    """
     if not math.isfinite(se) or se <= 0:
         return 4
     return int(min(max(1 - math.floor(math.log10(se)), 0), 12))

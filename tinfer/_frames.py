@@ -1,4 +1,4 @@
-"""From DataFrame columns to clean float arrays and summaries: selection, validation, missing values.
+"""From DataFrame columns to clean float arrays: selection, validation, missing values.
 
 No statistics here beyond counting; the caller's DataFrame is never modified.
 """

@@ -76,7 +76,8 @@ def from_summary(
     for name, v in (("n", n), ("mean", mean), ("sd", sd)):
         if len(v) != 2:
             raise ParameterError(
-                f"The {name!r} parameter of from_summary must be a number or a pair. Got {v!r} instead."
+                f"The {name!r} parameter of from_summary must be a number or a pair. "
+                f"Got {v!r} instead."
             )
         for item in v:
             _check_number(name, item, func)

@@ -75,7 +75,9 @@ def ncp_interval(t_obs, df, level, side: str) -> tuple[np.ndarray, np.ndarray]:
 
 
 def hedges_j(df) -> np.ndarray:
-    """Exact small-sample correction J(df) = Gamma(df/2) / (sqrt(df/2) Gamma((df-1)/2)) (Hedges 1981).
+    """Exact small-sample correction of Hedges (1981).
+
+    J(df) = Gamma(df/2) / (sqrt(df/2) Gamma((df-1)/2)).
 
     Examples
     --------
