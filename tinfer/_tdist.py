@@ -77,7 +77,7 @@ class TDistribution:
     def critical(self, level: float = 0.95, side: str = "two-sided") -> float:
         """Critical value at significance ``1 - level``.
 
-        Two-sided: the positive c with P(|T| > c) = 1 - level (reject when |t| > c).
+        Two-sided: the positive c with P(abs(T) > c) = 1 - level (reject when abs(t) > c).
         "upper": c with P(T > c) = 1 - level. "lower": the negative c with P(T < c) = 1 - level.
         """
         level = check_level(level, "critical")

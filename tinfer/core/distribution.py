@@ -116,7 +116,7 @@ def p_value(t, df, side: str) -> tuple[np.ndarray, np.ndarray]:
 def critical(df, level, side: str) -> np.ndarray:
     """Critical value for a test at significance ``1 - level``.
 
-    Two-sided: the positive value c with P(|T| > c) = 1 - level. Upper: c with
+    Two-sided: the positive value c with P(abs(T) > c) = 1 - level. Upper: c with
     P(T > c) = 1 - level. Lower: the negative value c with P(T < c) = 1 - level.
     """
     alpha = 1.0 - np.asarray(level, float)

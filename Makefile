@@ -1,0 +1,57 @@
+# tinfer: `make demo` and `make test` each set everything up from scratch on a fresh machine.
+PYTHON ?= python3
+VENV   := .venv
+PY     := $(VENV)/bin/python
+STAMP  := $(VENV)/.installed
+RECORDS := records
+CHROMIUM := /usr/bin/chromium
+
+.PHONY: setup demo test lint unit notebooks-check docs browser-deps lab notebooks bench clean
+
+setup: $(STAMP)
+
+$(STAMP): pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade pip
+	$(PY) -m pip install --quiet -e ".[dev]"
+	touch $(STAMP)
+
+# Debian's Chromium for the browser checks (no browser download by any test tool).
+browser-deps:
+	@if [ ! -x $(CHROMIUM) ]; then \
+		echo "Installing Debian's chromium package for the browser checks"; \
+		apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null; \
+	fi
+
+## The main job: run every demo notebook into a shareable analysis record (.ipynb + offline HTML).
+demo: setup
+	$(PY) -m tinfer.records notebooks $(RECORDS)
+
+lint: setup
+	$(PY) -m ruff check tinfer tests benchmarks notebooks/conftest.py
+	$(PY) -m ruff format --check tinfer tests benchmarks notebooks/conftest.py
+
+unit: setup browser-deps
+	$(PY) -m pytest -q tests tinfer
+
+notebooks-check: setup
+	$(PY) -m pytest -q --nbval --nbval-current-env -p no:randomly notebooks
+
+docs: setup
+	$(PY) -m sphinx -W --keep-going -q -b html docs docs/_build/html
+
+test: lint unit notebooks-check docs
+	@echo "make test: all checks passed"
+
+## Re-execute the notebooks in place (their stored outputs are what nbval checks against).
+notebooks: setup
+	$(PY) -m tinfer.records notebooks notebooks --in-place
+
+lab: setup
+	$(VENV)/bin/jupyter lab notebooks
+
+bench: setup
+	@for f in benchmarks/bench_*.py; do echo "== $$f"; $(PY) $$f; done
+
+clean:
+	rm -rf $(VENV) $(RECORDS) docs/_build test-output
