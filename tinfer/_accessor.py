@@ -83,6 +83,11 @@ class TinferFrameAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
+        margin: float | tuple[float, float] | None = None,
+        margin_units: str = "raw",
+        worse: str | None = None,
+        superior: bool = False,
+        trim: float = 0.0,
     ) -> TResult:
         """Test the mean of ``column`` against the reference value ``null``.
 
@@ -98,6 +103,24 @@ class TinferFrameAccessor:
             Confidence level of the interval; the test's significance level is ``1 - level``.
         units : str, optional
             Units of the measurements, shown next to estimates.
+        margin : float or (float, float), optional
+            Ask for an equivalence claim by two one-sided tests (TOST): a positive number
+            ``m`` is the band ``null - m`` to ``null + m``; a pair ``(lower, upper)`` gives
+            offsets relative to ``null`` with ``lower < 0 < upper``, e.g. ``(-1.5, 2.0)``.
+            Each one-sided test runs at ``1 - level``; the matching interval is at
+            ``2 * level - 1`` (90% for the default level).
+        margin_units : {"raw", "standardised"}, default "raw"
+            "standardised": the margin is in SDs (converted with the sample SD); the raw
+            margin then depends on the observed SD.
+        worse : {None, "lower", "higher"}
+            For a one-sided claim (non-inferiority): the direction that counts as worse.
+            With ``margin=m`` the claim is "not worse than ``null`` by more than m".
+        superior : bool, default False
+            With ``worse``: claim "better than ``null`` by more than the margin" instead.
+        trim : float, default 0
+            Proportion trimmed from each tail, in [0, 0.5): with ``trim=0.2`` Yuen's
+            trimmed-mean t (20% trimmed means, winsorised variances) replaces the t test
+            and the estimate is a trimmed mean. 0 gives the ordinary t.
 
         Returns
         -------
@@ -113,7 +136,18 @@ class TinferFrameAccessor:
         """
         sample = _frames.one_column(self._obj, column)
         return _one_sample(
-            sample, str(column), func="one_sample", null=null, side=side, level=level, units=units
+            sample,
+            str(column),
+            func="one_sample",
+            null=null,
+            side=side,
+            level=level,
+            units=units,
+            margin=margin,
+            margin_units=margin_units,
+            worse=worse,
+            superior=superior,
+            trim=trim,
         )
 
     def two_sample(
@@ -127,6 +161,11 @@ class TinferFrameAccessor:
         level: float = 0.95,
         pooled: bool = False,
         units: str | None = None,
+        margin: float | tuple[float, float] | None = None,
+        margin_units: str = "raw",
+        worse: str | None = None,
+        superior: bool = False,
+        trim: float = 0.0,
     ) -> TResult:
         """Compare the means of two independent groups (Welch by default).
 
@@ -150,6 +189,24 @@ class TinferFrameAccessor:
             True for Student's equal-variance test; False for Welch's test.
         units : str, optional
             Units of the measurements.
+        margin : float or (float, float), optional
+            Ask for an equivalence claim by two one-sided tests (TOST): a positive number
+            ``m`` is the band ``null - m`` to ``null + m``; a pair ``(lower, upper)`` gives
+            offsets relative to ``null`` with ``lower < 0 < upper``, e.g. ``(-1.5, 2.0)``.
+            Each one-sided test runs at ``1 - level``; the matching interval is at
+            ``2 * level - 1`` (90% for the default level).
+        margin_units : {"raw", "standardised"}, default "raw"
+            "standardised": the margin is in SDs (converted with the pooled SD); the raw
+            margin then depends on the observed SD.
+        worse : {None, "lower", "higher"}
+            For a one-sided claim (non-inferiority): the direction that counts as worse.
+            With ``margin=m`` the claim is "not worse than ``null`` by more than m".
+        superior : bool, default False
+            With ``worse``: claim "better than ``null`` by more than the margin" instead.
+        trim : float, default 0
+            Proportion trimmed from each tail, in [0, 0.5): with ``trim=0.2`` Yuen's
+            trimmed-mean t (20% trimmed means, winsorised variances) replaces the t test
+            and the estimate is a trimmed mean difference. 0 gives the ordinary t.
 
         Examples
         --------
@@ -161,6 +218,8 @@ class TinferFrameAccessor:
         ('drip minus furrow', 1.15, 4.75)
         """
         opts = dict(null=null, side=side, level=level, pooled=pooled, units=units)
+        opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        opts["trim"] = trim
         if by is None:
             if not _is_pair(column):
                 raise DataError(
@@ -184,13 +243,22 @@ class TinferFrameAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
+        margin: float | tuple[float, float] | None = None,
+        margin_units: str = "raw",
+        worse: str | None = None,
+        superior: bool = False,
+        trim: float = 0.0,
     ) -> TResult:
         """Paired comparison: the mean of within-unit differences, first minus second.
 
         Wide data: ``paired("before", "after")``, one row per unit. Long data:
         ``paired("score", by="visit", subject="unit_id")``, one row per unit and
         condition; pairs are matched by ``subject``. Rows missing either value of a
-        pair are dropped and counted.
+        pair are dropped and counted. ``margin``, ``margin_units``, ``worse`` and
+        ``superior`` ask for an equivalence or non-inferiority claim as in ``one_sample``,
+        with a standardised margin converted by the SD of the differences.
+        ``trim`` (e.g. 0.2) runs Yuen's trimmed-mean t on the differences: the estimate is
+        then the trimmed mean of the differences.
 
         Examples
         --------
@@ -202,6 +270,8 @@ class TinferFrameAccessor:
         ('before minus after', 0.6)
         """
         opts = dict(null=null, side=side, level=level, units=units)
+        opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        opts["trim"] = trim
         if by is None and subject is None:
             if second is None:
                 raise DataError(
@@ -220,6 +290,87 @@ class TinferFrameAccessor:
         return _paired(a, b, dropped, variable, func="paired", **opts)
 
 
+    def compare(
+        self,
+        columns: Hashable | Sequence[Hashable] | None = None,
+        by: Hashable | None = None,
+        within: Hashable | Sequence[Hashable] | None = None,
+        *,
+        groups: Sequence | None = None,
+        null: float = 0.0,
+        paired: Sequence | None = None,
+        adjust: str = "holm",
+        rate: float = 0.05,
+        level: float = 0.95,
+        side: str = "two-sided",
+        pooled: bool = False,
+    ):
+        """Many t tests at once: every metric in every segment, with adjusted p-values.
+
+        One pass over the rows builds n, mean and the sum of squared deviations of every
+        segment, arm and column; all tests then run as array operations.
+
+        Parameters
+        ----------
+        columns : column label or list of labels
+            The value columns (metrics) to compare.
+        by : column label, optional
+            Two-level group column: a Welch (or pooled) two-sample test per segment,
+            first minus second. Without ``by`` (and without ``paired``) each segment's
+            mean is tested against ``null``.
+        within : column label or list of labels, optional
+            Segment columns; one test per combination of their values that occurs.
+        groups : (first, second), optional
+            The two levels of ``by`` to compare, in order; default: its two levels sorted.
+        null : float, default 0
+            Hypothesised mean, difference or paired difference.
+        paired : (first, second) or list of such pairs, optional
+            Paired wide columns: each pair is tested on its within-row differences
+            first minus second (rows missing either value are dropped). Replaces
+            ``columns``.
+        adjust : {"holm", "hochberg", "bh", "by", "none"}, default "holm"
+            Multiplicity adjustment over all tested rows as one family; also
+            "benjamini-hochberg" and "benjamini-yekutieli".
+        rate : float, default 0.05
+            Error rate (family-wise for Holm and Hochberg, false discovery rate for BH
+            and BY): a row is a discovery when its adjusted p-value is at most ``rate``.
+        level, side, pooled
+            As for ``two_sample``.
+
+        Returns
+        -------
+        BatchResult
+            ``.to_frame()`` has one row per segment and metric.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"fill_g": [501, 503, 502, 498, 497, 499, 510, 512, 509,
+        ...                               508, 507, 509],
+        ...                    "line": ["new", "new", "new", "old", "old", "old"] * 2,
+        ...                    "shift": ["day"] * 6 + ["night"] * 6})
+        >>> m = df.tinfer.compare("fill_g", by="line", within="shift", adjust="bh")
+        >>> m.comparison, m.n_tests, m.estimate.round(2).tolist()
+        ('new minus old', 2, [4.0, 2.33])
+        """
+        from ._compare import compare_frame
+
+        return compare_frame(
+            self._obj,
+            columns,
+            by,
+            within,
+            groups=groups,
+            null=null,
+            paired=paired,
+            adjust=adjust,
+            rate=rate,
+            level=level,
+            side=side,
+            pooled=pooled,
+        )
+
+
 @pd.api.extensions.register_series_accessor("tinfer")
 class TinferSeriesAccessor:
     """t inference on one Series: ``s.tinfer.one_sample(null=...)``."""
@@ -234,6 +385,11 @@ class TinferSeriesAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
+        margin: float | tuple[float, float] | None = None,
+        margin_units: str = "raw",
+        worse: str | None = None,
+        superior: bool = False,
+        trim: float = 0.0,
     ) -> TResult:
         """Test the mean of the Series against ``null``; see ``DataFrame.tinfer.one_sample``.
 
@@ -248,7 +404,18 @@ class TinferSeriesAccessor:
         what = f"Series {name!r}"
         sample = _frames.finite(_frames.to_float(self._obj, what), name, what)
         return _one_sample(
-            sample, name, func="one_sample", null=null, side=side, level=level, units=units
+            sample,
+            name,
+            func="one_sample",
+            null=null,
+            side=side,
+            level=level,
+            units=units,
+            margin=margin,
+            margin_units=margin_units,
+            worse=worse,
+            superior=superior,
+            trim=trim,
         )
 
 

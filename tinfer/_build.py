@@ -6,7 +6,8 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from ._errors import DataError
+from ._errors import DataError, ParameterError
+from ._margin import check_margin, equivalence_for
 from ._validation import check_bool, check_finite, check_level, check_side
 from .core import procedures
 from .core.summary import Summary
@@ -67,12 +68,19 @@ def build(
     extra_groups: Sequence[GroupStats] = (),
     samples: tuple[np.ndarray, ...] | None = None,
     warnings: Sequence[str] = (),
+    margin=None,
+    margin_units="raw",
+    worse=None,
+    superior=False,
+    trim=0.0,
 ) -> TResult:
     """Run the procedure for ``design`` on ``summaries`` and wrap the numbers in a TResult."""
     level = check_level(level, func)
     side = check_side(side, func)
     null = check_finite(null, "null", func)
     pooled = check_bool(pooled, "pooled", func)
+    margin_spec = check_margin(margin, margin_units, worse, superior, func)
+    trim = check_trim(trim, func, samples, pooled)
     labels = tuple(str(v) for v in labels)
     n_missing = tuple(n_missing) or (0,) * len(summaries)
     if design == "two-sample":
@@ -104,6 +112,10 @@ def build(
             groups = (group_stats(labels[0], s, n_missing[0]),)
         method = METHODS[design]
         pooled = False
+    if trim:
+        c, method = trimmed(design, samples, trim, labels, variable, null, level, side)
+        if design == "one-sample":
+            comparison = f"{trim * 100:g}% trimmed mean of {variable}"
     warns = list(warnings)
     for g in groups:
         if g.n_missing:
@@ -126,7 +138,7 @@ def build(
         side=side,
         null=null,
         effect=Effect(
-            name=EFFECT_NAMES[design],
+            name=ROBUST_EFFECT if trim else EFFECT_NAMES[design],
             value=_scalar(c.effect),
             ci=(_scalar(c.effect_low), _scalar(c.effect_high)),
             level=level,
@@ -140,7 +152,77 @@ def build(
         summaries=tuple(summaries),
         samples=samples,
         created=now_iso(),
+        trim=trim,
+        equivalence=None
+        if margin_spec is None
+        else equivalence_for(
+            margin_spec,
+            design=design,
+            summaries=tuple(summaries),
+            estimate=_scalar(c.estimate),
+            se=_scalar(c.se),
+            df=_scalar(c.df),
+            null=null,
+            level=level,
+            labels=labels,
+            comparison=comparison,
+            units=units,
+            func=func,
+        ),
     )
+
+
+ROBUST_EFFECT = "robust d (AKP)"
+
+
+def check_trim(trim, func: str, samples, pooled: bool) -> float:
+    """``trim`` as a float in [0, 0.5); trimming needs the values and excludes ``pooled``."""
+    if isinstance(trim, bool) or not isinstance(trim, int | float) or not 0 <= trim < 0.5:
+        raise ParameterError(
+            f"The 'trim' parameter of {func} must be a float in [0, 0.5) (0 for the ordinary "
+            f"t, 0.2 for 20% trimmed means). Got {trim!r} instead."
+        )
+    if trim and samples is None:
+        raise ParameterError(
+            f"The 'trim' parameter of {func} needs the data values; results from published "
+            "summaries (n, mean, sd) cannot be trimmed. Use trim=0."
+        )
+    if trim and pooled:
+        raise ParameterError(
+            f"The 'pooled' parameter of {func} must be False with trim > 0: Yuen's test does "
+            "not pool variances. Got True instead."
+        )
+    return float(trim)
+
+
+def trimmed(design, samples, trim, labels, variable, null, level, side):
+    """Yuen's trimmed-mean t on the stored values; returns the computed arrays and method."""
+    from .core import robust
+
+    parts = [robust.Trimmed.of(np.asarray(x, float), trim) for x in samples]
+    names = list(labels) if design == "two-sample" else [f"the values of {variable}"]
+    if design == "paired":
+        names = [f"the differences {labels[0]} minus {labels[1]}"]
+    for p, name in zip(parts, names, strict=True):
+        if int(p.h) < 2:
+            raise DataError(
+                f"After trimming {trim:g} per tail, {name} keep(s) {int(p.h)} value(s); "
+                "a trimmed-mean t needs at least 2. Use a smaller trim or more data."
+            )
+    if not all(_scalar(p.wvar) > 0 for p in parts):
+        bad = [n for p, n in zip(parts, names, strict=True) if not _scalar(p.wvar) > 0]
+        if design != "two-sample" or len(bad) == 2:
+            raise DataError(
+                f"The winsorised values of {' and '.join(bad)} have no spread, so the "
+                "trimmed-mean standard error is zero and t is undefined. Use a smaller trim."
+            )
+    pct = f"{trim * 100:g}% trimmed"
+    if design == "two-sample":
+        c = robust.yuen_two_sample(*parts, null=null, level=level, side=side)
+        return c, f"Yuen trimmed-mean t ({pct})"
+    c = robust.yuen_one_sample(parts[0], null=null, level=level, side=side)
+    kind = "Paired" if design == "paired" else "One-sample"
+    return c, f"{kind} Yuen trimmed-mean t ({pct})"
 
 
 def check_summary_n(s: Summary, label: str) -> None:
@@ -154,7 +236,8 @@ def check_summary_n(s: Summary, label: str) -> None:
 
 def rebuild(result: TResult, **changes) -> TResult:
     """Recompute ``result`` from its stored summaries with other options."""
-    allowed = {"level", "side", "null", "pooled"}
+    allowed = {"level", "side", "null", "pooled", "margin", "margin_units", "worse", "superior"}
+    allowed |= {"trim"}
     unknown = set(changes) - allowed
     if unknown:
         raise TypeError(
@@ -165,8 +248,19 @@ def rebuild(result: TResult, **changes) -> TResult:
         "side": result.side,
         "null": result.null,
         "pooled": result.pooled,
+        "trim": result.trim,
+    }
+    eq = result.equivalence
+    opts |= {
+        "margin": eq.margin if eq else None,
+        "margin_units": eq.margin_units if eq else "raw",
+        "worse": eq.worse if eq else None,
+        "superior": eq.superior if eq else False,
     }
     opts.update(changes)
+    if changes.get("margin", 0) is None:  # margin=None drops the claim and its companions
+        for key, default in (("margin_units", "raw"), ("worse", None), ("superior", False)):
+            opts[key] = changes.get(key, default)
     extra = result.groups[:-1] if result.design == "paired" else ()
     n_missing = tuple(g.n_missing for g in result.groups[-len(result.summaries) :])
     new = build(

@@ -32,6 +32,18 @@ def fmt_p(p: float, log_p: float | None = None) -> str:
     return f"{p:.2e}"
 
 
+def p_equals(p: float, log_p: float | None = None) -> str:
+    """The p-value with its relation: "p = 0.0382", or "p below 1e-300" (rule above).
+
+    Examples
+    --------
+    >>> p_equals(0.03824), p_equals(0.0, -1234.5)
+    ('p = 0.0382', 'p below 1e-300')
+    """
+    text = fmt_p(p, log_p)
+    return f"p {text}" if text.startswith("below") else f"p = {text}"
+
+
 def decimals_for(se: float) -> int:
     """Decimals that show a standard error to two significant digits.
 

@@ -29,6 +29,10 @@ def from_summary(
     labels: Sequence[str] | None = None,
     variable: str = "value",
     units: str | None = None,
+    margin: float | tuple[float, float] | None = None,
+    margin_units: str = "raw",
+    worse: str | None = None,
+    superior: bool = False,
 ) -> TResult:
     """Run a t procedure from published counts, means and standard deviations.
 
@@ -49,6 +53,11 @@ def from_summary(
         Names of the groups (or of the two conditions, for paired differences).
     variable : str, default "value"
         What was measured.
+    margin, margin_units, worse, superior
+        An equivalence, non-inferiority or superiority-by-margin claim by two one-sided
+        tests, as for the DataFrame methods: ``margin=2.0`` is the band ``null`` ± 2;
+        ``margin=(-1.5, 2.0)`` gives offsets relative to ``null``; ``worse="lower"`` makes
+        it one-sided ("not worse than ``null`` by more than the margin").
 
     Examples
     --------
@@ -65,6 +74,7 @@ def from_summary(
             f"sample) or all be pairs (two samples). Got n={n!r}, mean={mean!r}, sd={sd!r} instead."
         )
     opts = dict(func=func, null=null, side=side, level=level, units=units, variable=variable)
+    opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
     if not any(shapes):
         for name, v in (("n", n), ("mean", mean), ("sd", sd)):
             _check_number(name, v, func)

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -111,6 +112,126 @@ class TDistribution:
     def __str__(self) -> str:
         df = "∞ (standard normal)" if math.isinf(self.df) else f"{self.df:g}"
         return f"t distribution, df = {df}"
+
+    def explore(self):
+        """Sliders for df (or the normal) and for a shaded area, with the area shown live.
+
+        Returns an ipywidgets VBox; the view shown (distribution, bounds, percentiles) is
+        kept in its ``result`` attribute and the shaded area in ``area``. Needs ipywidgets.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> ex = tinfer.tdist(12).explore()
+        >>> ex.bounds.value = (-1.0, 2.0)
+        >>> round(ex.area, 6)
+        0.797148
+        """
+        from .display.widgets import explore_tdist
+
+        return explore_tdist(self)
+
+    def chart(
+        self,
+        low: float | None = None,
+        high: float | None = None,
+        percentiles: Sequence[float] = (0.025, 0.975),
+        normal: bool = True,
+    ):
+        """Altair chart of the density with P(low < T < high) shaded and percentiles marked.
+
+        Leave ``low`` or ``high`` out for a tail, both out for no shading; ``normal`` adds the
+        standard normal density (dashed) for comparison. The chart is returned, not shown.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> type(tinfer.tdist(8).chart(low=2.0)).__name__
+        'LayerChart'
+        """
+        from .display.charts import tdist_chart
+
+        return tdist_chart(self, low, high, percentiles, normal)
+
+    def show(
+        self,
+        low: float | None = None,
+        high: float | None = None,
+        percentiles: Sequence[float] = (0.025, 0.975),
+    ) -> TDistView:
+        """A displayable card of this distribution with an area and percentiles.
+
+        Leave it last in a notebook cell to see the card (area, percentiles, moments and
+        chart); ``str()`` gives the same in plain text. Displaying the distribution itself
+        shows the card without an area.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> print(tinfer.tdist(12).show(low=-1, high=2, percentiles=(0.975,)))
+        t distribution, df = 12
+          area P(-1 < T < 2) = 0.797
+          97.5% percentile: 2.1788
+          mean: 0 (exists for df > 1)
+          variance: 1.2 (df / (df − 2), finite for df > 2)
+          SD: 1.095
+          median: 0 (every df)
+        """
+        if low is not None and high is not None and low > high:
+            raise ValueError("show() needs low <= high.")
+        return TDistView(self, low, high, tuple(float(q) for q in percentiles))
+
+    def _repr_mimebundle_(self, include=None, exclude=None):
+        from .display.render import mimebundle
+
+        return mimebundle(self)
+
+
+@dataclass(frozen=True)
+class TDistView:
+    """A t distribution with an area and percentiles to show; made by ``TDistribution.show``.
+
+    Attributes
+    ----------
+    dist : TDistribution
+    low, high : float or None
+        Bounds of the area (None: open on that side).
+    percentiles : tuple of float
+        Lower-tail probabilities whose values are listed and marked.
+    """
+
+    dist: TDistribution
+    low: float | None = None
+    high: float | None = None
+    percentiles: tuple[float, ...] = (0.025, 0.975)
+
+    @property
+    def area(self) -> float | None:
+        """P(low < T < high), or None when neither bound is given."""
+        if self.low is None and self.high is None:
+            return None
+        return float(self.dist.area(low=self.low, high=self.high))
+
+    @property
+    def values(self) -> tuple[float, ...]:
+        """The values at ``percentiles``."""
+        return tuple(float(self.dist.percentile(q)) for q in self.percentiles)
+
+    def chart(self, normal: bool = True):
+        """The Altair chart of this view (see ``TDistribution.chart``).
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> type(tinfer.tdist(6).show(high=-1.5).chart()).__name__
+        'LayerChart'
+        """
+        return self.dist.chart(self.low, self.high, self.percentiles, normal)
+
+    def __str__(self) -> str:
+        from .display.card import tdist_lines
+
+        return "\n".join(tdist_lines(self))
 
     def _repr_mimebundle_(self, include=None, exclude=None):
         from .display.render import mimebundle

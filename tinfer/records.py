@@ -48,7 +48,22 @@ def execute(path: Path, timeout: int = 600):
 def to_html(nb) -> str:
     """Static HTML of an executed notebook. Charts are inline SVG, so it renders offline."""
     _, _, HTMLExporter = _imports()
-    exporter = HTMLExporter()
+    from traitlets.config import Config
+
+    # Prefer the card's HTML over a live widget view: the widget needs JavaScript from a CDN,
+    # the card is self-contained (inline CSS and SVG) and renders offline.
+    priority = [
+        "text/html",
+        "application/vnd.jupyter.widget-view+json",
+        "application/javascript",
+        "text/markdown",
+        "image/svg+xml",
+        "text/latex",
+        "image/png",
+        "image/jpeg",
+        "text/plain",
+    ]
+    exporter = HTMLExporter(config=Config({"NbConvertBase": {"display_data_priority": priority}}))
     body, _ = exporter.from_notebook_node(nb)
     return body
 

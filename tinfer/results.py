@@ -13,7 +13,7 @@ from typing import Any
 
 import numpy as np
 
-from ._format import decimals_for, fmt_df, fmt_level, fmt_num, fmt_p
+from ._format import decimals_for, fmt_df, fmt_level, fmt_num, p_equals
 from .core.summary import Summary
 
 DESIGNS = ("one-sample", "paired", "two-sample")
@@ -49,6 +49,93 @@ class Effect:
         return f"{self.name} = {self.value:.3f} ({fmt_level(self.level)} CI {lo} to {hi})"
 
 
+@dataclass(frozen=True)
+class OneSidedTest:
+    """One of the one-sided t tests behind an equivalence or non-inferiority claim.
+
+    ``bound`` is the band limit tested (raw units); ``null_hypothesis`` says in words
+    what the test rejects when ``p`` is small.
+    """
+
+    bound: float
+    null_hypothesis: str
+    t: float
+    df: float
+    p: float
+    log_p: float
+
+
+@dataclass(frozen=True)
+class Equivalence:
+    """An equivalence, non-inferiority or superiority-by-margin claim, tested by TOST.
+
+    Attributes
+    ----------
+    kind : str
+        "equivalence" (a band on both sides), "non-inferiority" or "superiority" (one side).
+    low, high : float
+        The band in raw units (absolute limits); one is infinite for a one-sided claim.
+    lower, upper : OneSidedTest or None
+        The test against ``low`` (null: true value at or below it) and against ``high``
+        (null: at or above it); ``None`` where that limit is infinite.
+    p, log_p : float
+        Overall p-value: the larger one-sided p-value.
+    ci, ci_level : tuple of float, float
+        The two-sided interval at ``1 - 2 alpha`` whose inclusion in the band is the
+        decision (for one-sided claims its finite limit is the one-sided ``1 - alpha`` bound).
+    alpha : float
+        Significance of each one-sided test, ``1 - level``.
+    decision : bool
+        True when the claim is shown at ``alpha``.
+    conclusion : str
+        The decision in words.
+    margin, margin_units, worse, superior
+        The margin keywords as given (offsets relative to ``null``), kept for recompute.
+    sd : float or None
+        The observed SD used to convert a standardised margin to raw units.
+    note : str
+        Words on the conversion of a standardised margin ("" for raw margins).
+    """
+
+    kind: str
+    low: float
+    high: float
+    lower: OneSidedTest | None
+    upper: OneSidedTest | None
+    p: float
+    log_p: float
+    ci: tuple[float, float]
+    ci_level: float
+    alpha: float
+    decision: bool
+    conclusion: str
+    margin: float | tuple[float, float]
+    margin_units: str = "raw"
+    worse: str | None = None
+    superior: bool = False
+    sd: float | None = None
+    note: str = ""
+
+    def to_dict(self) -> dict[str, Any]:
+        """The numbers as a flat dict, keys prefixed ``margin_``/``tost_``."""
+        nan = float("nan")
+        return {
+            "tost_kind": self.kind,
+            "margin_low": self.low,
+            "margin_high": self.high,
+            "tost_t_lower": self.lower.t if self.lower else nan,
+            "tost_p_lower": self.lower.p if self.lower else nan,
+            "tost_t_upper": self.upper.t if self.upper else nan,
+            "tost_p_upper": self.upper.p if self.upper else nan,
+            "tost_p": self.p,
+            "tost_ci_low": self.ci[0],
+            "tost_ci_high": self.ci[1],
+            "tost_ci_level": self.ci_level,
+            "tost_decision": self.decision,
+            "tost_conclusion": self.conclusion,
+        }
+
+
 @dataclass(frozen=True, eq=False)
 class TResult:
     """The full answer of one t procedure.
@@ -72,6 +159,11 @@ class TResult:
         Standardised effect size with its noncentral-t interval.
     groups : tuple of GroupStats
         Descriptives per group, or of the differences for paired data.
+    equivalence : Equivalence or None
+        The two one-sided tests of a margin claim, when ``margin=`` was given.
+    trim : float
+        Proportion trimmed from each tail (Yuen's trimmed-mean t); 0 for the ordinary t,
+        whose estimate is a mean rather than a trimmed mean.
     """
 
     design: str
@@ -97,6 +189,8 @@ class TResult:
     summaries: tuple[Summary, ...] = field(default=(), repr=False)
     samples: tuple[np.ndarray, ...] | None = field(default=None, repr=False)
     created: str = field(default="", repr=False)
+    equivalence: Equivalence | None = None
+    trim: float = 0.0
 
     # ------------------------------------------------------------------ words
     @property
@@ -110,12 +204,17 @@ class TResult:
         verb = {"two-sided": "differs from", "upper": "is greater than", "lower": "is less than"}
         return f"the {self._subject()} {verb[self.side]} {self._fmt(self.null)}"
 
+    @property
+    def location(self) -> str:
+        """What is estimated: "mean" or, for Yuen's test, e.g. "20% trimmed mean"."""
+        return f"{self.trim * 100:g}% trimmed mean" if self.trim else "mean"
+
     def _subject(self) -> str:
         if self.design == "one-sample":
-            return f"mean of {self.variable}"
+            return f"{self.location} of {self.variable}"
         if self.design == "paired":
-            return f"mean paired difference ({self.comparison}) in {self.variable}"
-        return f"difference in mean {self.variable} ({self.comparison})"
+            return f"{self.location} paired difference ({self.comparison}) in {self.variable}"
+        return f"difference in {self.location} {self.variable} ({self.comparison})"
 
     @property
     def decimals(self) -> int:
@@ -141,23 +240,32 @@ class TResult:
         else:
             ci = f"{fmt_level(self.level)} upper bound {self._fmt(hi)}"
         if self.design == "one-sample":
-            lead = f"The mean of {self.variable} is {self._fmt(self.estimate)}"
+            lead = f"The {self.location} of {self.variable} is {self._fmt(self.estimate)}"
         elif self.design == "paired":
             lead = (
                 f"Paired differences in {self.variable} ({self.comparison}) average "
-                f"{self._fmt(self.estimate)}"
+                f"{self._fmt(self.estimate)}" + (f" ({self.location})" if self.trim else "")
             )
         else:
             lead = (
-                f"The mean {self.variable} of {self.labels[0]} minus {self.labels[1]} is "
-                f"{self._fmt(self.estimate)}"
+                f"The {self.location} {self.variable} of {self.labels[0]} minus "
+                f"{self.labels[1]} is {self._fmt(self.estimate)}"
             )
         verdict = (
             f"the data are not consistent with {self._fmt(self.null)}"
             if self.significant
             else f"the data are consistent with {self._fmt(self.null)}"
         )
-        return f"{lead} ({ci}); {verdict} (p = {fmt_p(self.p, self.log_p)})."
+        eq = self.equivalence
+        if eq is not None:
+            from ._margin import interval_words
+
+            label = {"equivalence": "TOST"}.get(eq.kind, eq.kind)
+            return (
+                f"{lead} ({interval_words(eq, self._fmt)}); {eq.conclusion} "
+                f"({label} {p_equals(eq.p, eq.log_p)})."
+            )
+        return f"{lead} ({ci}); {verdict} ({p_equals(self.p, self.log_p)})."
 
     # ------------------------------------------------------------------ tables
     def to_dict(self) -> dict[str, Any]:
@@ -182,7 +290,8 @@ class TResult:
             "effect_ci_low": self.effect.ci[0],
             "effect_ci_high": self.effect.ci[1],
             "method": self.method,
-        }
+            "trim": self.trim,
+        } | (self.equivalence.to_dict() if self.equivalence is not None else {})
 
     def to_frame(self):
         """One tidy row with every number of the test (a pandas DataFrame)."""
@@ -222,6 +331,114 @@ class TResult:
 
         return rebuild(self, **changes)
 
+    # ------------------------------------------------------------------ assumptions
+    def check(self):
+        """Check the assumptions behind this result; advice in plain words.
+
+        Per group (or for the paired differences): skewness and excess kurtosis, a
+        normality test, outliers by the Hampel identifier, the variance ratio, Q-Q and
+        box plots (``.chart()``). Reads the values kept on the result; the advice never
+        changes the test that was run. Returns a :class:`~tinfer.Diagnostics`.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"ms": [212, 198, 205, 220, 201, 209, 214, 640.0]})
+        >>> d = df.tinfer.one_sample("ms", null=200).check()
+        >>> d.shapes[0].n_outliers, "trim=0.2" in d.advice
+        (1, True)
+        """
+        from ._diagnostics import diagnose
+
+        return diagnose(self)
+
+    def bootstrap(
+        self, n_resamples: int = 9999, seed: int | None = None, level: float | None = None
+    ):
+        """Bootstrap-t (percentile-t) interval as a cross-check of the t interval.
+
+        Resamples the stored values (each group on its own) ``n_resamples`` times,
+        studentises each resampled mean, trimmed mean or difference with its own standard
+        error, and reads the interval from the quantiles of t*. Reproducible with ``seed``
+        (a numpy Generator); with ``seed=None`` a seed is drawn and reported. ``level``
+        defaults to this result's. Returns a :class:`~tinfer.BootstrapCheck`.
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"h": [3.1, 2.4, 5.8, 3.3, 2.9, 4.4, 3.0, 7.9, 3.6, 2.2]})
+        >>> b = df.tinfer.one_sample("h").bootstrap(n_resamples=1999, seed=11)
+        >>> b.seed, b.interval[0] < 3.86 < b.interval[1]
+        (11, True)
+        """
+        from ._diagnostics import bootstrap
+
+        return bootstrap(self, n_resamples=n_resamples, seed=seed, level=level)
+
+    def explore(self):
+        """Sliders for level, side and null (margin, trim where they apply), redrawn live.
+
+        Returns an ipywidgets VBox; every change recomputes from the stored summaries and
+        the result shown is kept in its ``result`` attribute. Needs ipywidgets.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> ex = tinfer.from_summary(n=20, mean=10.4, sd=1.5, null=10).explore()
+        >>> ex.side.value = "upper"
+        >>> ex.result.side, ex.result.ci[1]
+        ('upper', inf)
+        """
+        from .display.widgets import explore_result
+
+        return explore_result(self)
+
+    # ------------------------------------------------------------------ planning
+    def sensitivity(self, power: float = 0.8):
+        """Smallest standardised effect this design (its n, level and side) detects with ``power``.
+
+        Returns a :class:`~tinfer.PlanResult` solved for ``effect`` (exact noncentral t;
+        pooled-variance t for two samples). This replaces "observed power", which only
+        restates the p-value.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=(12, 15), mean=(5.1, 4.3), sd=(1.2, 1.5))
+        >>> round(r.sensitivity(0.8).effect, 3)
+        1.129
+        """
+        from ._plan import sensitivity_of
+
+        return sensitivity_of(self, power=power)
+
+    def plan(
+        self,
+        power: float = 0.8,
+        effect: float | None = None,
+        *,
+        diff: float | None = None,
+        level: float | None = None,
+        side: str | None = None,
+        ratio: float | None = None,
+    ):
+        """Size a follow-up study with the SD observed here (a :class:`~tinfer.PlanResult`).
+
+        ``effect`` defaults to the observed standardised effect; ``diff`` gives a raw
+        difference instead. ``level``, ``side`` and the allocation ``ratio`` default to
+        this result's.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=(12, 15), mean=(5.1, 4.3), sd=(1.2, 1.5))
+        >>> r.plan(power=0.8, diff=1.0).n
+        28
+        """
+        from ._plan import follow_up
+
+        return follow_up(self, power, effect, diff=diff, level=level, side=side, ratio=ratio)
+
     # ------------------------------------------------------------------ text
     def __str__(self) -> str:
         lines = [f"{self.method}: {self.comparison}", self.headline()]
@@ -232,7 +449,7 @@ class TResult:
             f"{fmt_num(hi, self.decimals)}]"
         )
         lines.append(
-            f"  t = {self.t:.3f}   df = {fmt_df(self.df)}   p = {fmt_p(self.p, self.log_p)}"
+            f"  t = {self.t:.3f}   df = {fmt_df(self.df)}   {p_equals(self.p, self.log_p)}"
             f" ({self.side})"
         )
         lines.append(f"  {self.effect}")
@@ -243,11 +460,57 @@ class TResult:
                 f"sd {fmt_num(g.sd, self.decimals)}"
             )
         lines.append(f"  H0: {self.null_hypothesis}.  H1: {self.alternative}.")
+        eq = self.equivalence
+        for test in (eq.lower, eq.upper) if eq is not None else ():
+            if test is not None:
+                lines.append(
+                    f"  one-sided test, H0 {test.null_hypothesis}: t = {test.t:.3f}, "
+                    f"{p_equals(test.p, test.log_p)}"
+                )
+        if eq is not None and eq.note:
+            lines.append(f"  {eq.note}")
         lines.extend(f"  note: {w}" for w in self.warnings)
         return "\n".join(lines)
 
     def __repr__(self) -> str:
         return f"<TResult {self.design}>\n{self}"
+
+    # ------------------------------------------------------------------ display
+    def chart(self, normal: bool = True):
+        """Altair chart: the t density with the p-value shaded, and the estimate's interval.
+
+        The upper panel marks the observed t and the critical value(s) at ``level``;
+        ``normal`` adds the standard normal density (dashed). The lower panel shows the
+        estimate with its interval against ``null`` on the data's scale. Returned, not shown.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=12, mean=5.4, sd=1.1, null=5.0)
+        >>> type(r.chart()).__name__
+        'VConcatChart'
+        """
+        from .display.charts import result_chart
+
+        return result_chart(self, normal)
+
+    def to_html(self, chart: bool = True) -> str:
+        """The HTML card as a string (the same as the notebook shows), for reports and files.
+
+        Self-contained: the stylesheet is inlined, the chart is inline SVG (``chart=False``
+        leaves it out), and there is no JavaScript.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=12, mean=5.4, sd=1.1, null=5.0)
+        >>> page = r.to_html(chart=False)
+        >>> page.startswith('<div class="tinfer-card">') and "<script" not in page
+        True
+        """
+        from .display.render import html
+
+        return html(self, chart=chart)
 
     def _repr_mimebundle_(self, include=None, exclude=None):
         from .display.render import mimebundle

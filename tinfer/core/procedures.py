@@ -46,12 +46,17 @@ def t_interval(estimate, se, df, level, side: str) -> tuple[np.ndarray, np.ndarr
     return estimate - half, estimate + half
 
 
-def _finish(estimate, se, df, null, level, side, t_eff, df_eff, scale, correction=1.0):
+def _finish(
+    estimate, se, df, null, level, side, t_eff, df_eff, scale, correction=1.0, effect_ci=True
+):
     with np.errstate(divide="ignore", invalid="ignore"):
         t = (estimate - null) / se
     p, log_p = dist.p_value(t, df, side)
     lo, hi = t_interval(estimate, se, df, level, side)
-    n_lo, n_hi = ncp_interval(t_eff, df_eff, level, side)
+    if effect_ci:
+        n_lo, n_hi = ncp_interval(t_eff, df_eff, level, side)
+    else:  # the noncentral-t inversion is the slow part; batch callers defer it
+        n_lo = n_hi = np.full(np.shape(t_eff), np.nan)
     return Computed(
         estimate=np.asarray(estimate, float),
         se=np.asarray(se, float),
@@ -68,7 +73,9 @@ def _finish(estimate, se, df, null, level, side, t_eff, df_eff, scale, correctio
     )
 
 
-def one_sample(s: Summary, null=0.0, level=0.95, side: str = "two-sided") -> Computed:
+def one_sample(
+    s: Summary, null=0.0, level=0.95, side: str = "two-sided", effect_ci: bool = True
+) -> Computed:
     """One-sample t for the mean against ``null``; effect size Cohen's d = (mean - null) / sd.
 
     Used for paired designs with ``s`` the summary of the differences (d is then d_z).
@@ -82,11 +89,19 @@ def one_sample(s: Summary, null=0.0, level=0.95, side: str = "two-sided") -> Com
     df = s.n - 1.0
     se = s.se
     t_eff = (s.mean - null) / se
-    return _finish(s.mean, se, df, null, level, side, t_eff, df, 1.0 / np.sqrt(s.n))
+    return _finish(
+        s.mean, se, df, null, level, side, t_eff, df, 1.0 / np.sqrt(s.n), effect_ci=effect_ci
+    )
 
 
 def two_sample(
-    a: Summary, b: Summary, null=0.0, level=0.95, side: str = "two-sided", pooled: bool = False
+    a: Summary,
+    b: Summary,
+    null=0.0,
+    level=0.95,
+    side: str = "two-sided",
+    pooled: bool = False,
+    effect_ci: bool = True,
 ) -> Computed:
     """Two independent samples, mean of ``a`` minus mean of ``b``.
 
@@ -108,4 +123,16 @@ def two_sample(
         with np.errstate(divide="ignore", invalid="ignore"):
             df = (va + vb) ** 2 / (va * va / (a.n - 1.0) + vb * vb / (b.n - 1.0))
     t_eff = (estimate - null) / (np.sqrt(sp2) * scale)
-    return _finish(estimate, se, df, null, level, side, t_eff, df_pool, scale, hedges_j(df_pool))
+    return _finish(
+        estimate,
+        se,
+        df,
+        null,
+        level,
+        side,
+        t_eff,
+        df_pool,
+        scale,
+        hedges_j(df_pool),
+        effect_ci=effect_ci,
+    )

@@ -1,0 +1,323 @@
+"""Display pieces for equivalence and non-inferiority claims (two one-sided tests).
+
+Small functions, each returning a string or chart layers, used by the card and by
+:func:`tinfer.display.charts.result_chart` when a result carries ``equivalence``:
+
+- :func:`card_section`: an HTML section listing the one-sided tests and the conclusion;
+- :func:`text_lines`: the same in plain text;
+- :func:`density_parts`: shaded tails and marks for the t-density panel (one tail at each
+  one-sided test's t);
+- :func:`band_layers`: the shaded band and the ``1 - 2 alpha`` interval for the data-scale panel;
+- :func:`equivalence_chart`: both panels together.
+"""
+
+from __future__ import annotations
+
+import html
+import math
+from typing import TYPE_CHECKING, Any
+
+from .._format import fmt_df, fmt_level, fmt_num, fmt_p, p_equals
+
+if TYPE_CHECKING:  # pragma: no cover
+    from ..results import Equivalence, OneSidedTest, TResult
+
+BAND = "#6a9f58"  # edge of the shaded band on the data scale (our own choice)
+BAND_FILL = "#dcebd5"
+TOST_CI = "#1f5f8b"
+
+KIND_TITLES = {
+    "equivalence": "Equivalence by two one-sided tests",
+    "non-inferiority": "Non-inferiority by a one-sided test",
+    "superiority": "Superiority by a margin, one-sided test",
+}
+
+
+def _tests(eq: Equivalence) -> list[tuple[str, OneSidedTest]]:
+    out = []
+    if eq.lower is not None:
+        out.append(("lower", eq.lower))
+    if eq.upper is not None:
+        out.append(("upper", eq.upper))
+    return out
+
+
+def _p_text(test: OneSidedTest) -> str:
+    return fmt_p(test.p, test.log_p)
+
+
+def text_lines(result: TResult) -> list[str]:
+    """Plain-text lines for the equivalence part of a result ([] when there is none).
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8, units="kg")
+    >>> print("\\n".join(text_lines(r)))
+    Equivalence by two one-sided tests: band -0.80 kg to 0.80 kg, each test at 0.05
+      H0 mean at or below -0.80 kg: t = 5.477, df = 29, p = 3.37e-06
+      H0 mean at or above 0.80 kg: t = -3.286, df = 29, p = 0.00133
+      90% CI -0.11 kg to 0.51 kg; shown: equivalent to 0 kg within ±0.8 kg (p = 0.00133)
+    """
+    eq = result.equivalence
+    if eq is None:
+        return []
+    lines = [f"{KIND_TITLES[eq.kind]}: band {_band_words(result)}, each test at {eq.alpha:.3g}"]
+    for _, test in _tests(eq):
+        lines.append(
+            f"  H0 {test.null_hypothesis}: t = {test.t:.3f}, df = {fmt_df(test.df)}, "
+            f"p = {_p_text(test)}"
+        )
+    from .._margin import interval_words
+
+    verdict = "shown" if eq.decision else "not shown"
+    lines.append(
+        f"  {interval_words(eq, result._fmt)}; {verdict}: {eq.conclusion} "
+        f"({p_equals(eq.p, eq.log_p)})"
+    )
+    if eq.note:
+        lines.append(f"  {eq.note}")
+    return lines
+
+
+def _band_words(result: TResult) -> str:
+    eq = result.equivalence
+    lo = result._fmt(eq.low) if math.isfinite(eq.low) else "−∞"
+    hi = result._fmt(eq.high) if math.isfinite(eq.high) else "∞"
+    return f"{lo} to {hi}"
+
+
+def card_section(result: TResult) -> str:
+    """An HTML section for the card: the one-sided tests, the interval, the conclusion.
+
+    Every user string is escaped; returns "" when the result has no margin claim.
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=(10, 12), mean=(5.0, 4.9), sd=(0.5, 0.6),
+    ...                         labels=("<a>", "b"), margin=1.0)
+    >>> s = card_section(r)
+    >>> "&lt;a&gt; minus b" in s and "<a>" not in s
+    True
+    """
+    eq = result.equivalence
+    if eq is None:
+        return ""
+    esc = html.escape
+    rows = []
+    for name, test in _tests(eq):
+        rows.append(
+            "<tr>"
+            f"<td>{esc(name)}</td>"
+            f"<td>{esc(test.null_hypothesis)}</td>"
+            f"<td>{test.t:.3f}</td>"
+            f"<td>{esc(fmt_df(test.df))}</td>"
+            f"<td>{esc(_p_text(test))}</td>"
+            "</tr>"
+        )
+    from .._margin import interval_words
+
+    verdict_class = "tinfer-eq-yes" if eq.decision else "tinfer-eq-no"
+    note = f'<p class="tinfer-eq-note">{esc(eq.note)}</p>' if eq.note else ""
+    return (
+        '<section class="tinfer-eq">'
+        f'<h4 class="tinfer-eq-title">{esc(KIND_TITLES[eq.kind])}</h4>'
+        f'<p class="tinfer-eq-band">Band: {esc(_band_words(result))}; '
+        f"each one-sided test at {eq.alpha:.3g}.</p>"
+        '<table class="tinfer-eq-tests">'
+        "<thead><tr><th>limit</th><th>null hypothesis</th><th>t</th><th>df</th>"
+        "<th>p</th></tr></thead>"
+        f"<tbody>{''.join(rows)}</tbody></table>"
+        f'<p class="tinfer-eq-verdict {verdict_class}">'
+        f"{esc(interval_words(eq, result._fmt))}: {esc(eq.conclusion)} "
+        f"({esc(p_equals(eq.p, eq.log_p))}).</p>"
+        f"{note}</section>"
+    )
+
+
+# ---------------------------------------------------------------------------- charts
+def density_values(result: TResult) -> list[float]:
+    """The t values the density panel must cover: each one-sided test's t and critical value."""
+    from ..core import distribution as dist
+
+    eq = result.equivalence
+    crit = float(dist.isf(eq.alpha, result.df))
+    vals = []
+    if eq.lower is not None:
+        vals += [eq.lower.t, crit]
+    if eq.upper is not None:
+        vals += [eq.upper.t, -crit]
+    return vals
+
+
+def density_parts(result: TResult, L: float) -> dict[str, Any]:
+    """Shaded tails, exact grid points, marks and subtitle for the t-density panel.
+
+    Each one-sided test's p-value is a tail of the same t distribution: the lower test's
+    to the right of its t (``P(T > t_lower)``), the upper test's to the left of its t
+    (``P(T < t_upper)``). Since ``t_lower > t_upper`` always, the two never overlap.
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8)
+    >>> parts = density_parts(r, 6.0)
+    >>> [(round(a, 3), round(b, 3)) for a, b in parts["shade"]]
+    [(5.477, 6.0), (-6.0, -3.286)]
+    """
+    from . import charts
+
+    eq = result.equivalence
+    shade, extra, marks = [], [], []
+    for row, (_, test) in enumerate(_tests(eq)):
+        a = charts._clamp(test.t, L)
+        shade.append((a, L) if test is eq.lower else (-L, a))
+        extra.append(a)
+        word = "t lower" if test is eq.lower else "t upper"
+        marks.append(
+            charts._mark("observed", test.t, charts._mark_label(f"{word} =", test.t, L), L, row)
+        )
+    from ..core import distribution as dist
+
+    crit = float(dist.isf(eq.alpha, result.df))
+    for value, test in ((crit, eq.lower), (-crit, eq.upper)):
+        if test is not None:
+            label = charts._mark_label("critical", value, L)
+            marks.append(charts._mark("critical", value, label, L, len(marks)))
+    ps = ", ".join(f"{name} {_p_text(t)}" for name, t in _tests(eq))
+    subtitle = f"shaded: one tail per one-sided test (p: {ps})"
+    return {"shade": shade, "extra": extra, "marks": marks, "subtitle": subtitle}
+
+
+def band_layers(result: TResult, edges: tuple[float, float]) -> list[dict[str, Any]]:
+    """Vega-Lite layers for the data-scale panel: the band shaded, the ``1 - 2 alpha`` CI.
+
+    Infinite band limits are drawn to the panel's ``edges``; for a one-sided claim the
+    interval is the one-sided ``1 - alpha`` bound, also drawn open to the edge.
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.5, worse="lower")
+    >>> layers = band_layers(r, (-1.0, 1.0))
+    >>> layers[0]["data"]["values"]
+    [{'b_lo': -0.5, 'b_hi': 1.0}]
+    """
+    eq = result.equivalence
+    lo = eq.low if math.isfinite(eq.low) else edges[0]
+    hi = eq.high if math.isfinite(eq.high) else edges[1]
+    scale = {"domain": list(edges), "nice": False, "zero": False}
+
+    def x(field: str, title: str | None = None) -> dict[str, Any]:
+        return {"field": field, "type": "quantitative", "scale": scale, "title": title}
+
+    ci_lo, ci_hi = eq.ci
+    if eq.upper is None:  # one-sided claim: the bound runs open to the panel edge
+        ci_hi = edges[1]
+    if eq.lower is None:
+        ci_lo = edges[0]
+    return [
+        {
+            "description": "margin band",
+            "data": {"values": [{"b_lo": lo, "b_hi": hi}]},
+            "mark": {"type": "rect", "fill": BAND_FILL, "stroke": BAND},
+            "encoding": {"x": x("b_lo"), "x2": {"field": "b_hi"}},
+        },
+        {
+            "description": "interval matching the decision",
+            "data": {"values": [{"c_lo": ci_lo, "c_hi": ci_hi}]},
+            "mark": {"type": "rule", "color": TOST_CI, "strokeWidth": 3},
+            "encoding": {"x": x("c_lo"), "x2": {"field": "c_hi"}},
+        },
+    ]
+
+
+def band_panel(result: TResult) -> dict[str, Any]:
+    """The data-scale panel: band, ``1 - 2 alpha`` interval and estimate (a Vega-Lite dict)."""
+    from . import charts
+
+    eq = result.equivalence
+    est = result.estimate
+    finite = [v for v in (eq.low, eq.high, *eq.ci, est) if math.isfinite(v)]
+    span = (max(finite) - min(finite)) or (abs(est) or 1.0)
+    edges = (min(finite) - 0.2 * span, max(finite) + 0.2 * span)
+    scale = {"domain": list(edges), "nice": False, "zero": False}
+    unit = f" ({result.units})" if result.units else ""
+    point = {"est": est, "label": fmt_num(est, result.decimals)}
+    x = {"field": "est", "type": "quantitative", "scale": scale}
+    layers = [
+        *band_layers(result, edges),
+        {
+            "description": "estimate",
+            "data": {"values": [point]},
+            "mark": {"type": "point", "filled": True, "size": 70, "color": TOST_CI, "opacity": 1},
+            "encoding": {"x": {**x, "title": f"{result.comparison}{unit}"}},
+        },
+        {
+            "description": "estimate label",
+            "data": {"values": [point]},
+            "mark": {"type": "text", "dy": -12, "fontSize": 10, "color": charts.INK},
+            "encoding": {"x": x, "text": {"field": "label", "type": "nominal"}},
+        },
+    ]
+    verdict = "inside" if eq.decision else "not inside"
+    if eq.lower is None or eq.upper is None:
+        which = "lower" if eq.upper is None else "upper"
+        what = f"one-sided {fmt_level(1.0 - eq.alpha)} {which} bound"
+    else:
+        what = f"{fmt_level(eq.ci_level)} CI"
+    return {
+        "description": "interval against the margin band",
+        "width": charts.WIDTH,
+        "height": charts.STRIP_HEIGHT,
+        "title": {
+            "text": f"{what} against the shaded band: {verdict}",
+            "fontSize": 11,
+        },
+        "layer": layers,
+    }
+
+
+def equivalence_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
+    """The Vega-Lite dict: t density with both one-sided tails shaded, and the band panel.
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=(10, 12), mean=(5.0, 4.9), sd=(0.5, 0.6), margin=1.0)
+    >>> [p["description"] for p in equivalence_spec(r)["vconcat"]]
+    ['t density with one-sided tails', 'interval against the margin band']
+    """
+    from . import charts
+
+    eq = result.equivalence
+    df = result.df
+    L = charts.half_width(density_values(result))
+    parts = density_parts(result, L)
+    rows = charts.density_rows(df, L, parts["extra"])
+    sub = parts["subtitle"]
+    if normal and not math.isinf(df):
+        sub += "; dashed: standard normal"
+    title = {
+        "text": f"t distribution, df = {fmt_df(df)}, each test at {eq.alpha:.3g}",
+        "subtitle": sub,
+    }
+    top = charts._density_panel(df, L, rows, parts["shade"], parts["marks"], normal, title)
+    top["description"] = "t density with one-sided tails"
+    return {"config": charts.config(), "vconcat": [top, band_panel(result)], "spacing": 16}
+
+
+def equivalence_chart(result: TResult, normal: bool = True):
+    """:func:`equivalence_spec` as an Altair chart (not displayed).
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.from_summary(n=(10, 12), mean=(5.0, 4.9), sd=(0.5, 0.6), margin=1.0)
+    >>> type(equivalence_chart(r)).__name__
+    'VConcatChart'
+    """
+    from . import charts
+
+    return charts._to_altair(equivalence_spec(result, normal))
