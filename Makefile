@@ -6,7 +6,7 @@ STAMP  := $(VENV)/.installed
 RECORDS := records
 CHROMIUM := /usr/bin/chromium
 
-.PHONY: setup demo test lint unit notebooks-check docs browser-deps lab notebooks bench clean
+.PHONY: setup demo test lint unit notebooks-check docs browser-deps lab notebooks bench readme-image clean
 
 setup: $(STAMP)
 
@@ -49,6 +49,9 @@ notebooks: setup
 
 lab: setup
 	$(VENV)/bin/jupyter lab notebooks
+
+readme-image: setup browser-deps
+	$(PY) docs/render_readme_card.py
 
 bench: setup
 	@for f in benchmarks/bench_*.py; do echo "== $$f"; $(PY) $$f; done

@@ -9,8 +9,6 @@ import strategies as tst
 from hypothesis import assume, given, settings
 from scipy import stats
 
-import tinfer
-
 # Student (1908), "The probable error of a mean", the sleep data of Cushny and Peebles:
 # extra hours of sleep of 10 patients under two drugs (entered from memory).
 DRUG_1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]

@@ -5,10 +5,10 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
+import strategies as tst
 from hypothesis import given, settings
 
 import tinfer
-import strategies as tst
 
 # Moore and McCabe, Introduction to the Practice of Statistics, the reading-activities
 # (DRP) example of chapter 7 (from memory): treatment n = 21, mean 51.48, sd 11.01;

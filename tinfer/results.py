@@ -248,13 +248,16 @@ class TResult:
             )
         else:
             lead = (
-                f"The {self.location} {self.variable} of {self.labels[0]} minus "
-                f"{self.labels[1]} is {self._fmt(self.estimate)}"
+                f"The difference in {self.location} {self.variable}, {self.labels[0]} minus "
+                f"{self.labels[1]}, is {self._fmt(self.estimate)}"
             )
+        target = self._fmt(self.null)
+        if self.design != "one-sample" and self.null == 0:
+            target = "no difference"
         verdict = (
-            f"the data are not consistent with {self._fmt(self.null)}"
+            f"the data are not consistent with {target}"
             if self.significant
-            else f"the data are consistent with {self._fmt(self.null)}"
+            else f"the data are consistent with {target}"
         )
         eq = self.equivalence
         if eq is not None:

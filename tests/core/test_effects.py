@@ -17,7 +17,14 @@ import pytest
 
 from tinfer.core.effects import hedges_j, ncp_interval
 
-mp.mp.dps = 25
+DIGITS = 25
+
+
+@pytest.fixture(autouse=True)
+def _mp_digits():
+    """mpmath's precision is global: set it per test and restore it after."""
+    with mp.workdps(DIGITS):
+        yield
 
 
 def mp_nct_cdf(t: float, df: float, lam: float) -> mp.mpf:

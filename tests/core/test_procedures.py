@@ -19,7 +19,9 @@ RTOL = 1e-12
 
 
 def _close(got, want, rtol=RTOL, atol=0.0):
-    np.testing.assert_allclose(np.asarray(got, float), np.asarray(want, float), rtol=rtol, atol=atol)
+    np.testing.assert_allclose(
+        np.asarray(got, float), np.asarray(want, float), rtol=rtol, atol=atol
+    )
 
 
 def _check(c, ref, level, side):
@@ -122,8 +124,12 @@ class TestVectorised:
         """Arrays of 200 Welch tests in one call match scipy test by test."""
         rng = np.random.default_rng(77)
         k = 200
-        groups_a = [rng.normal(0.3, rng.uniform(0.5, 3), int(rng.integers(2, 60))) for _ in range(k)]
-        groups_b = [rng.normal(0.0, rng.uniform(0.5, 3), int(rng.integers(2, 60))) for _ in range(k)]
+        groups_a = [
+            rng.normal(0.3, rng.uniform(0.5, 3), int(rng.integers(2, 60))) for _ in range(k)
+        ]
+        groups_b = [
+            rng.normal(0.0, rng.uniform(0.5, 3), int(rng.integers(2, 60))) for _ in range(k)
+        ]
 
         def stack(gs):
             return Summary(

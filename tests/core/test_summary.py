@@ -89,8 +89,16 @@ class TestMergeFunction:
         """Merging arrays of summaries equals numpy's mean and ddof=1 variance per row."""
         rng = np.random.default_rng(11)
         data = rng.normal(50, 3, size=(6, 40))
-        left = Summary(np.full(6, 15.0), data[:, :15].mean(1), ((data[:, :15].T - data[:, :15].mean(1)) ** 2).sum(0))
-        right = Summary(np.full(6, 25.0), data[:, 15:].mean(1), ((data[:, 15:].T - data[:, 15:].mean(1)) ** 2).sum(0))
+        left = Summary(
+            np.full(6, 15.0),
+            data[:, :15].mean(1),
+            ((data[:, :15].T - data[:, :15].mean(1)) ** 2).sum(0),
+        )
+        right = Summary(
+            np.full(6, 25.0),
+            data[:, 15:].mean(1),
+            ((data[:, 15:].T - data[:, 15:].mean(1)) ** 2).sum(0),
+        )
         m = merge(left, right)
         np.testing.assert_allclose(m.mean, data.mean(1), rtol=1e-14)
         np.testing.assert_allclose(m.var, data.var(1, ddof=1), rtol=1e-12)

@@ -6,6 +6,9 @@ the lower limit is the noncentrality under which the observed t sits at the uppe
 ``alpha/2`` point, the upper limit the one under which it sits at the lower ``alpha/2``
 point. The limits are found by scipy's ``nctdtrinc`` and then polished by a bracketed
 Illinois (regula falsi) iteration on ``nctdtr`` until they are exact to rounding.
+Beyond |t| of about 2e5, where scipy's noncentral t gives nan (or does not return), the
+limits come from the large-noncentrality limit ``P(T <= t) ~ P(S >= lam / t)`` with
+``S^2 ~ chi2(df) / df``, whose relative error is of order 1 / |t|.
 """
 
 from __future__ import annotations
