@@ -45,8 +45,13 @@ def main() -> None:
         with sync_playwright() as p:
             browser = p.chromium.launch(
                 executable_path="/usr/bin/chromium",
-                args=["--headless", "--no-sandbox", "--disable-gpu",
-                      "--disable-background-networking", "--no-first-run"],
+                args=[
+                    "--headless",
+                    "--no-sandbox",
+                    "--disable-gpu",
+                    "--disable-background-networking",
+                    "--no-first-run",
+                ],
             )
             page = browser.new_page(viewport={"width": 980, "height": 600})
             page.route("http*://**", lambda route: route.abort())

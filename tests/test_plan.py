@@ -297,3 +297,15 @@ def test_public_names():
     """plan and PlanResult are public and listed in __all__."""
     assert {"plan", "PlanResult"} <= set(tinfer.__all__)
     assert tinfer.plan is not None and tinfer.PlanResult is PlanResult
+
+
+class TestPlanFromTrimmedResult:
+    def test_refused_with_reason(self):
+        """Planning from a Yuen result is refused: the noncentral-t plan is for means."""
+        rng = np.random.default_rng(5)
+        df = pd.DataFrame({"v": rng.normal(size=30), "g": ["a"] * 15 + ["b"] * 15})
+        r = df.tinfer.two_sample("v", by="g", trim=0.2)
+        with pytest.raises(tinfer.ParameterError, match="trimmed-means result"):
+            r.sensitivity()
+        with pytest.raises(tinfer.ParameterError, match="trimmed-means result"):
+            r.plan(power=0.9)

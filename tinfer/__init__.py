@@ -9,6 +9,7 @@ from . import _accessor  # noqa: F401  (registers the accessor)
 from ._compare import BatchResult, SmallSegmentWarning, compare_summaries
 from ._diagnostics import BootstrapCheck, Diagnostics
 from ._errors import DataError, MissingDependencyError, ParameterError, TinferError
+from ._offline import offline_charts
 from ._plan import PlanResult, plan
 from ._summary_api import from_summary
 from ._tdist import TDistribution, tdist
@@ -35,6 +36,7 @@ __all__ = [
     "__version__",
     "compare_summaries",
     "from_summary",
+    "offline_charts",
     "plan",
     "tdist",
 ]

@@ -289,7 +289,6 @@ class TinferFrameAccessor:
             variable = str(first)
         return _paired(a, b, dropped, variable, func="paired", **opts)
 
-
     def compare(
         self,
         columns: Hashable | Sequence[Hashable] | None = None,

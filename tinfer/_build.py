@@ -92,7 +92,9 @@ def build(
                 f"All values of {variable} are equal within each group (no spread), so the "
                 "standard error is zero and t is undefined."
             )
-        c = procedures.two_sample(a, b, null=null, level=level, side=side, pooled=pooled)
+        c = procedures.two_sample(
+            a, b, null=null, level=level, side=side, pooled=pooled, effect_ci=not trim
+        )
         comparison = f"{labels[0]} minus {labels[1]}"
         method = METHODS["pooled" if pooled else "welch"]
         groups = tuple(
@@ -102,7 +104,7 @@ def build(
         (s,) = summaries
         what = f"the differences {labels[0]} minus {labels[1]}" if design == "paired" else variable
         check_summary(s, what)
-        c = procedures.one_sample(s, null=null, level=level, side=side)
+        c = procedures.one_sample(s, null=null, level=level, side=side, effect_ci=not trim)
         if design == "paired":
             comparison = f"{labels[0]} minus {labels[1]}"
             groups = (*extra_groups, group_stats(comparison, s, n_missing[0]))

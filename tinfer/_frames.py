@@ -75,38 +75,42 @@ def _levels_text(levels: Sequence) -> str:
     return shown + (", ..." if len(levels) > 10 else "")
 
 
+def pick_levels(key: pd.Series, by: Hashable, groups: Sequence | None, what: str) -> list:
+    """The two levels of ``key`` to compare, in order (sorted unless ``groups`` says otherwise)."""
+    present = pd.unique(key.dropna())
+    if groups is None:
+        if len(present) != 2:
+            raise DataError(
+                f"Column {by!r} has {len(present)} level(s) ({_levels_text(present)}), but a "
+                f"{what} needs exactly two. Pick two with groups=(first, second)."
+            )
+        return sorted(present, key=str)
+    if isinstance(groups, str) or len(groups) != 2:
+        raise DataError(
+            f"groups must name two levels of {by!r}, as (first, second). Got {groups!r}."
+        )
+    chosen = list(groups)
+    for g in chosen:
+        if g not in set(present):
+            raise DataError(
+                f"Level {g!r} does not occur in column {by!r}. Levels found: "
+                f"{_levels_text(present)}."
+            )
+    if chosen[0] == chosen[1]:
+        raise DataError(f"groups names the same level twice: {groups!r}.")
+    return chosen
+
+
 def two_groups(
     df: pd.DataFrame, value: Hashable, by: Hashable, groups: Sequence | None
 ) -> tuple[Sample, Sample]:
     """Split ``value`` by the two levels of ``by`` (or the two levels named in ``groups``)."""
     vals = to_float(column(df, value), f"Column {value!r}")
     key = column(df, by)
-    present = pd.unique(key.dropna())
-    if groups is None:
-        if len(present) != 2:
-            raise DataError(
-                f"Column {by!r} has {len(present)} level(s) ({_levels_text(present)}), but a "
-                "two-sample test needs exactly two. Pick two with groups=(first, second)."
-            )
-        chosen = sorted(present, key=str)
-    else:
-        if isinstance(groups, str) or len(groups) != 2:
-            raise DataError(
-                f"groups must name two levels of {by!r}, as (first, second). Got {groups!r}."
-            )
-        chosen = list(groups)
-        for g in chosen:
-            if g not in set(present):
-                raise DataError(
-                    f"Level {g!r} does not occur in column {by!r}. Levels found: "
-                    f"{_levels_text(present)}."
-                )
-        if chosen[0] == chosen[1]:
-            raise DataError(f"groups names the same level twice: {groups!r}.")
+    chosen = pick_levels(key, by, groups, "two-sample test")
     out = []
-    key_arr = key.to_numpy()
     for g in chosen:
-        mask = key_arr == g
+        mask = (key == g).to_numpy(dtype=bool, na_value=False)
         out.append(finite(vals[mask], str(g), f"Column {value!r} in group {g!r}"))
     return out[0], out[1]
 
@@ -136,22 +140,7 @@ def paired_long(
     vals = to_float(column(df, value), f"Column {value!r}")
     key = column(df, by)
     subj = column(df, subject)
-    present = pd.unique(key.dropna())
-    if groups is None:
-        if len(present) != 2:
-            raise DataError(
-                f"Column {by!r} has {len(present)} level(s) ({_levels_text(present)}), but a "
-                "paired test needs exactly two conditions. Pick two with groups=(first, second)."
-            )
-        chosen = sorted(present, key=str)
-    else:
-        chosen = list(groups)
-        for g in chosen:
-            if g not in set(present):
-                raise DataError(
-                    f"Level {g!r} does not occur in column {by!r}. Levels found: "
-                    f"{_levels_text(present)}."
-                )
+    chosen = pick_levels(key, by, groups, "paired test (two conditions)")
     frames = []
     for g in chosen:
         mask = (key == g).to_numpy(dtype=bool, na_value=False)

@@ -800,6 +800,12 @@ def _design_of(result) -> tuple[str, float, float | None, float]:
     design = result.design
     if design not in DESIGNS:
         raise ParameterError(f"Planning from a {design!r} result is not supported.")
+    if getattr(result, "trim", 0):
+        raise ParameterError(
+            "Planning from a trimmed-means result is not offered: the exact noncentral-t plan "
+            "is for means. Plan with tinfer.plan(...) using the ordinary SD, or recompute the "
+            "result with trim=0 first."
+        )
     if design == "two-sample":
         a, b = result.summaries
         n1, n2 = float(a.n), float(b.n)

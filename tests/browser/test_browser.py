@@ -9,29 +9,15 @@ no dialog may open. Screenshots go to ``test-output/``. The data are invented: d
 
 from __future__ import annotations
 
-import os
 import re
 from pathlib import Path
 
 import pytest
+from browser_support import CHROMIUM, CHROMIUM_ARGS, OUTPUT, require_chromium
 
-CHROMIUM = "/usr/bin/chromium"
-CHROMIUM_ARGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-    "--no-first-run",
-]
-OUTPUT = Path(__file__).resolve().parents[2] / "test-output"
 SCRIPT = "<script>alert(1)</script>"
 
-pytestmark = [
-    pytest.mark.browser,
-    pytest.mark.skipif(not os.path.exists(CHROMIUM), reason="needs Debian's chromium package"),
-]
+pytestmark = require_chromium()
 
 CELL_RESULT = f"""\
 import pandas as pd

@@ -21,18 +21,8 @@ import urllib.request
 from pathlib import Path
 
 import pytest
+from browser_support import CHROMIUM, CHROMIUM_ARGS, OUTPUT, require_chromium
 
-CHROMIUM = "/usr/bin/chromium"
-CHROMIUM_ARGS = [
-    "--headless",
-    "--no-sandbox",
-    "--disable-gpu",
-    "--disable-background-networking",
-    "--disable-component-update",
-    "--disable-sync",
-    "--no-first-run",
-]
-OUTPUT = Path(__file__).resolve().parents[2] / "test-output"
 SERVER_START_S = 45.0
 TOTAL_BUDGET_S = 110.0
 
@@ -44,10 +34,7 @@ ex = r.explore()
 ex
 """
 
-pytestmark = [
-    pytest.mark.browser,
-    pytest.mark.skipif(not os.path.exists(CHROMIUM), reason="needs Debian's chromium package"),
-]
+pytestmark = require_chromium()
 
 
 def _free_port() -> int:

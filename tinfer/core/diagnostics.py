@@ -212,8 +212,8 @@ def advise(
     when G2 > 1, each only counted when the normality test also rejects at 5%;
     *contaminated* when it is skewed or heavy-tailed and the Hampel rule flags values.
     Contamination points to a 20% trimmed-means test; skew alone in small samples
-    (n < 50) to a bootstrap-t cross-check; otherwise the ordinary t (Welch for two
-    samples) fits.
+    (n < 50) to a bootstrap-t cross-check; skew alone in larger samples is reported with
+    the bootstrap as an optional check; otherwise the ordinary t (Welch for two samples) fits.
     """
     basis = []
     for s in shapes:
@@ -261,6 +261,12 @@ def advise(
         text = (
             f"Skewed values in {_names(skewed)} with fewer than 50 values: the t interval can "
             "be lopsided in error. Cross-check it with result.bootstrap() (bootstrap-t)."
+        )
+    elif skewed:
+        text = (
+            f"Skewed values in {_names(skewed)}, with at least 50 values and none beyond the "
+            "Hampel rule: with samples this size the t procedure for the mean holds up well; "
+            "result.bootstrap() is a cheap cross-check if the skew is strong."
         )
     elif heavy:
         text = (

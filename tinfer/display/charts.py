@@ -107,7 +107,8 @@ def density_rows(df: float, L: float, extra: Iterable[float] = ()) -> list[dict[
     True
     """
     grid = np.round(np.linspace(-L, L, GRID_POINTS), 4)
-    pts = {float(x) for x in grid}
+    # rounding may push the end points just outside [-L, L]: use the exact ends instead
+    pts = {float(x) for x in grid[1:-1]} | {-float(L), float(L)}
     pts.update(float(v) for v in extra if math.isfinite(v) and -L <= v <= L)
     x = np.array(sorted(pts))
     dens = dist.pdf(x, df).tolist()
