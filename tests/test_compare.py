@@ -392,6 +392,19 @@ class TestBatchResultDisplay:
         with pytest.raises(ParameterError, match="'page' parameter"):
             m.chart(top=40, page=4)
 
+    def test_chart_one_panel_per_metric(self):
+        """Several metrics get one forest panel each, holding only that metric's rows."""
+        m = orchard().tinfer.compare(["mass_g", "brix"], by="net", within="site")
+        spec = m.chart(top=4).to_dict()
+        assert len(spec["vconcat"]) == 2
+        frame = m.to_frame()
+        for panel, metric in zip(spec["vconcat"], ("mass_g", "brix"), strict=True):
+            rows = inline_rows(panel, "row")
+            assert len(rows) == 4
+            mine = frame[frame["metric"] == metric]
+            assert {r["estimate"] for r in rows} <= set(mine["estimate"].tolist())
+            assert panel["title"]["text"].startswith(f"{metric}:")
+
     def test_p_histogram_counts(self):
         """The histogram holds numpy's bin counts of the testable p-values."""
         m = many_segments(500)

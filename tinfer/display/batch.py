@@ -170,11 +170,24 @@ def html_card(r: BatchResult) -> str:
 
 
 # --------------------------------------------------------------------------- charts
-def forest_rows(r: BatchResult, top: int = 30, page: int | None = None) -> tuple[list[dict], str]:
-    """Rows of the forest plot (at most ``top``) and a note on the rows not shown."""
+def forest_rows(
+    r: BatchResult, top: int = 30, page: int | None = None, metric: str | None = None
+) -> tuple[list[dict], str]:
+    """Rows of the forest plot (at most ``top``) and a note on the rows not shown.
+
+    With ``metric`` only that metric's rows are drawn (estimates of different metrics are in
+    different units and do not share an axis).
+    """
     if isinstance(top, bool) or not isinstance(top, int) or top < 1:
         raise ParameterError(f"The 'top' parameter of chart must be a positive int. Got {top!r}.")
     order = _order(r)
+    if metric is not None:
+        if metric not in r.metrics:
+            raise ParameterError(
+                f"The 'metric' parameter of chart must be one of {list(r.metrics)}. "
+                f"Got {metric!r} instead."
+            )
+        order = order[r.row_metric[order] == r.metrics.index(metric)]
     total = order.size
     start = 0
     if page is not None:
@@ -187,7 +200,7 @@ def forest_rows(r: BatchResult, top: int = 30, page: int | None = None) -> tuple
         start = (page - 1) * top
     shown = order[start : start + top]
     seg = r.segment_labels()
-    multi = len(r.metrics) > 1
+    multi = len(r.metrics) > 1 and metric is None
     rows = []
     for rank, i in enumerate(shown, start=start + 1):
         label = seg[i] + (f" · {r.metrics[r.row_metric[i]]}" if multi else "")
@@ -219,9 +232,19 @@ def _finite_or_none(v) -> float | None:
 
 
 def forest_chart(r: BatchResult, top: int = 30, page: int | None = None):
-    """Forest plot: one line per comparison, smallest p at the top, discoveries in colour."""
+    """Forest plot: one line per comparison, smallest p at the top, discoveries in colour.
+
+    Several metrics give one panel each, stacked, each on its own scale.
+    """
     alt = _altair()
-    rows, note = forest_rows(r, top=top, page=page)
+    if len(r.metrics) == 1:
+        return _forest_panel(alt, r, top, page, None)
+    panels = [_forest_panel(alt, r, top, page, m) for m in r.metrics]
+    return alt.vconcat(*panels).resolve_scale(x="independent", y="independent")
+
+
+def _forest_panel(alt, r: BatchResult, top: int, page: int | None, metric: str | None):
+    rows, note = forest_rows(r, top=top, page=page, metric=metric)
     order = [row["row"] for row in rows]
     base = alt.Chart(alt.Data(values=rows))
     y = alt.Y("row:N", sort=order, title=None)
@@ -232,7 +255,10 @@ def forest_chart(r: BatchResult, top: int = 30, page: int | None = None):
     )
     tip = ["row:N", "estimate:Q", "low:Q", "high:Q", "p:N", "p_adjusted:N"]
     bars = base.mark_rule().encode(
-        x=alt.X("low:Q", title=f"estimate ({r.comparison})"), x2="high:Q", y=y, color=colour
+        x=alt.X("low:Q", title=f"{metric or 'estimate'} ({r.comparison})"),
+        x2="high:Q",
+        y=y,
+        color=colour,
     )
     dots = base.mark_point(filled=True, size=40).encode(
         x="estimate:Q", y=y, color=colour, tooltip=tip
@@ -242,8 +268,17 @@ def forest_chart(r: BatchResult, top: int = 30, page: int | None = None):
         .mark_rule(strokeDash=[4, 3], color=RULE)
         .encode(x="x:Q")
     )
+    if metric is None:
+        heading = f"{r.n_discoveries:,} of {r.n_tests:,} comparisons are discoveries"
+    else:
+        k = r.metrics.index(metric)
+        mine = r.testable & (r.row_metric == k)
+        heading = (
+            f"{metric}: {int((r.discovery & mine).sum()):,} of {int(mine.sum()):,} "
+            "comparisons are discoveries"
+        )
     title = alt.TitleParams(
-        f"{r.n_discoveries:,} of {r.n_tests:,} comparisons are discoveries",
+        heading,
         subtitle=[note] if note else [],
         anchor="start",
     )
