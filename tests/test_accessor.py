@@ -9,6 +9,8 @@ import strategies as tst
 from hypothesis import assume, given, settings
 from scipy import stats
 
+from tinfer import DataError
+
 # Student (1908), "The probable error of a mean", the sleep data of Cushny and Peebles:
 # extra hours of sleep of 10 patients under two drugs (entered from memory).
 DRUG_1 = [0.7, -1.6, -0.2, -1.2, -0.1, 3.4, 3.7, 0.8, 0.0, 2.0]
@@ -114,6 +116,18 @@ class TestOneSample:
         assert r.ci[0] == pytest.approx(ref.confidence_interval(0.95).low, rel=1e-12)
         assert r.ci[1] == np.inf
 
+    @pytest.mark.parametrize(("scale", "word"), [(1e-200, "too small"), (1e155, "too large")])
+    def test_spread_beyond_double_precision_is_refused(self, scale, word):
+        """Spreads whose squares leave double precision raise a DataError (was: t = 0, p = 1)."""
+        # IEEE 754 binary64 range, common practice: 1e-200 squared underflows to 0 and 1e155
+        # squared overflows; before, the first said "no spread", the second gave t = 0, p = 1.
+        df = pd.DataFrame({"x": np.array([1.0, 2.0, 4.0]) * scale})
+        with pytest.raises(DataError, match=word):
+            df.tinfer.one_sample("x")
+        wide = pd.DataFrame({"p": np.array([1.0, 2.0, 4.0]) * scale, "q": [0.0, 0.0, 0.0]})
+        with pytest.raises(DataError, match=word):
+            wide.tinfer.two_sample(("p", "q"))
+
 
 class TestMissingValues:
     def test_dropped_per_group_and_counted(self):
@@ -126,6 +140,18 @@ class TestMissingValues:
         )
         r = df.tinfer.two_sample("v", by="g")
         assert [(g.label, g.n, g.n_missing) for g in r.groups] == [("a", 3, 1), ("b", 3, 2)]
+        ref = stats.ttest_ind([1.0, 2.5, 3.0], [4.0, 4.5, 6.0], equal_var=False)
+        assert r.t == pytest.approx(ref.statistic, rel=1e-12)
+
+    def test_rows_without_group_are_noted(self):
+        """Rows whose group is missing are left out and said so, also after recompute."""
+        df = pd.DataFrame(
+            {"v": [1.0, 2.5, 3.0, 9.0, 4.0, 4.5, 6.0, 7.0], "g": ["a", "a", "a", None] + ["b"] * 4}
+        )
+        df.loc[7, "g"] = np.nan
+        r = df.tinfer.two_sample("v", by="g")
+        assert r.warnings[0] == "2 row(s) with a missing 'g' value were not used."  # by hand
+        assert r.recompute(side="upper").warnings == r.warnings
         ref = stats.ttest_ind([1.0, 2.5, 3.0], [4.0, 4.5, 6.0], equal_var=False)
         assert r.t == pytest.approx(ref.statistic, rel=1e-12)
 

@@ -341,7 +341,7 @@ class TestBatchResultDisplay:
         assert "&lt;b&gt;brix" in page and "<b>brix" not in page
         assert "&lt;site&gt;" in page
         assert "<script" not in page.lower()
-        assert 'class="tinfer-batch"' in page
+        assert '<div class="tinfer-card">' in page
         assert f"{m.n_tests} comparisons tested" in bundle["text/plain"]
 
     def test_card_lists_small_segment_warning(self):

@@ -221,6 +221,16 @@ class TestWords:
         assert c == "not worse than 500 g by more than 0.5 g, counting lower as worse"
         assert "one-sided 95% lower bound" in r.headline()
 
+    def test_trimmed_one_sample_words_name_the_trimmed_mean(self, fills):
+        """With trim, the one-sided nulls and the failure words speak of the trimmed mean."""
+        r = fills.tinfer.one_sample("fill_g", null=500, margin=0.01, worse="lower", trim=0.2)
+        eq = r.equivalence
+        # common practice, no source: Yuen's test is about trimmed means, not means
+        assert eq.lower.null_hypothesis.startswith("20% trimmed mean at or below")
+        assert not eq.decision and "the 20% trimmed mean could be worse" in eq.conclusion
+        plain = r.recompute(trim=0.0).equivalence
+        assert plain.lower.null_hypothesis.startswith("mean at or below")
+
     def test_to_dict_holds_the_tost_numbers(self):
         """to_dict() carries both one-sided tests, the overall p and the decision."""
         r = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8)

@@ -144,6 +144,13 @@ class TestPairedLong:
         with _raises(r"Unmatched subjects: 'u3' only under 'first'"):
             df.tinfer.paired("score", by="visit", subject="unit")
 
+    def test_missing_subject_id(self):
+        """Rows without a subject id are refused, not paired with each other (was: paired)."""
+        df = self._long()
+        df.loc[[4, 5], "unit"] = None  # common practice, no source: a missing id is no id
+        with _raises(r"Column 'unit' has 1 missing subject id\(s\) under 'visit' = 'first'"):
+            df.tinfer.paired("score", by="visit", subject="unit")
+
 
 class TestParameters:
     def test_level_message_shape(self):

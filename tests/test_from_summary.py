@@ -93,12 +93,27 @@ class TestParameters:
         with pytest.raises(tinfer.ParameterError, match="'n', 'mean' and 'sd'"):
             tinfer.from_summary(n=(3, 4), mean=1.0, sd=(1.0, 2.0))
 
-    @pytest.mark.parametrize(("kw", "name"), [({"sd": -1.0}, "sd"), ({"n": 0}, "n")])
+    @pytest.mark.parametrize(
+        ("kw", "name"), [({"sd": -1.0}, "sd"), ({"n": 0}, "n"), ({"n": 10.5}, "n")]
+    )
     def test_bad_numbers(self, kw, name):
-        """A negative sd or n < 1 names the parameter (TinferError, ValueError)."""
+        """A negative sd, n < 1 or a fractional n names the parameter (was: df = 9.5)."""
         args = {"n": 5, "mean": 1.0, "sd": 1.0} | kw
         with pytest.raises(ValueError, match=f"'{name}' parameter of from_summary"):
             tinfer.from_summary(**args)
+
+    @pytest.mark.parametrize(
+        "kw",
+        [
+            {"n": 10, "mean": 1.0, "sd": 1.0, "paired": True, "labels": ("a",)},
+            {"n": (10, 10), "mean": (1.0, 0.0), "sd": (1.0, 1.0), "labels": ("a",)},
+            {"n": (10, 10), "mean": (1.0, 0.0), "sd": (1.0, 1.0), "labels": "ab"},
+        ],
+    )
+    def test_labels_must_be_two_names(self, kw):
+        """labels of the wrong length raise a ParameterError (was IndexError / bare zip error)."""
+        with pytest.raises(tinfer.ParameterError, match="'labels' parameter of from_summary"):
+            tinfer.from_summary(**kw)
 
     def test_level_message_shape(self):
         """level=1.5 gives the one message shape used everywhere."""

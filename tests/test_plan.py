@@ -309,3 +309,13 @@ class TestPlanFromTrimmedResult:
             r.sensitivity()
         with pytest.raises(tinfer.ParameterError, match="trimmed-means result"):
             r.plan(power=0.9)
+
+
+class TestGridText:
+    def test_long_grid_text_is_bounded(self):
+        """A 500-point grid lists 20 rows in its text form and says how many more to_frame has."""
+        p = tinfer.plan("two-sample", effect=0.5, n=list(range(5, 505)))
+        text = str(p)
+        assert "... 480 more row(s); see to_frame()" in text
+        assert len(text.splitlines()) < 30
+        assert len(p.to_frame()) == 500

@@ -156,7 +156,7 @@ class TestCheck:
             assert word in text
         html = d._repr_mimebundle_()["text/html"]
         assert "<b>min</b>" not in html and "&lt;b&gt;min&lt;/b&gt;" in html
-        assert "<script" not in html and "tinfer-chk" in html
+        assert "<script" not in html and "tinfer-card" in html
 
     def test_chart_spec_stays_small_for_large_n(self):
         """With 150,000 values per group the chart spec stays below 100 KB (thinned)."""

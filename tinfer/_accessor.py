@@ -178,7 +178,8 @@ class TinferFrameAccessor:
             names the two to compare.
         groups : (first, second), optional
             The two levels to compare and their order: the estimate is first minus second.
-            Without it the two levels are taken in sorted order.
+            Without it the two levels are taken in sorted order of their text (so a
+            level 10 comes before a level 2).
         null : float, default 0
             The hypothesised difference (first minus second).
         side : {"two-sided", "upper", "lower"}
@@ -229,6 +230,9 @@ class TinferFrameAccessor:
             a, b = (_frames.one_column(self._obj, c) for c in column)
             return _two_sample(a, b, f"{column[0]} vs {column[1]}", func="two_sample", **opts)
         a, b = _frames.two_groups(self._obj, column, by, groups)
+        no_key = int(_frames.column(self._obj, by).isna().sum())
+        if no_key:
+            opts["warnings"] = (f"{no_key} row(s) with a missing {by!r} value were not used.",)
         return _two_sample(a, b, str(column), func="two_sample", **opts)
 
     def paired(
@@ -320,7 +324,8 @@ class TinferFrameAccessor:
         within : column label or list of labels, optional
             Segment columns; one test per combination of their values that occurs.
         groups : (first, second), optional
-            The two levels of ``by`` to compare, in order; default: its two levels sorted.
+            The two levels of ``by`` to compare, in order; default: its two levels sorted
+            as text.
         null : float, default 0
             Hypothesised mean, difference or paired difference.
         paired : (first, second) or list of such pairs, optional

@@ -37,7 +37,25 @@ def group_stats(label: str, s: Summary, n_missing: int = 0) -> GroupStats:
     )
 
 
-def check_summary(s: Summary, label: str) -> None:
+def check_scale(s: Summary, label: str, values=None) -> None:
+    """Raise a DataError when the mean or the sum of squares leaves double precision.
+
+    Values whose spread is beyond about 1e154 overflow the sum of squared deviations (t would
+    silently come out 0); a spread below about 1e-154 underflows it to 0.
+    """
+    if not (np.isfinite(_scalar(s.mean)) and np.isfinite(_scalar(s.ssd))):
+        raise DataError(
+            f"The values of {label} are too large for double precision (their sum of squared "
+            "deviations overflows). Rescale them, for example by expressing them in larger units."
+        )
+    if values is not None and _scalar(s.ssd) == 0 and np.ptp(values) > 0:
+        raise DataError(
+            f"The spread of {label} is too small for double precision (its squared deviations "
+            "underflow to 0). Rescale the values, for example by expressing them in smaller units."
+        )
+
+
+def check_summary(s: Summary, label: str, values=None) -> None:
     """Raise a DataError when a summary cannot support a t procedure."""
     n = _scalar(s.n)
     if n < 2:
@@ -45,6 +63,7 @@ def check_summary(s: Summary, label: str) -> None:
             f"{label} has {n:g} usable value(s) after dropping missing ones; a t procedure "
             "needs at least 2. Check the filter or the missing values."
         )
+    check_scale(s, label, values)
     if not _scalar(s.ssd) > 0:
         raise DataError(
             f"All values of {label} are equal (no spread), so the standard error is zero and "
@@ -85,8 +104,9 @@ def build(
     n_missing = tuple(n_missing) or (0,) * len(summaries)
     if design == "two-sample":
         a, b = summaries
-        for s, lab in zip(summaries, labels, strict=True):
+        for k, (s, lab) in enumerate(zip(summaries, labels, strict=True)):
             check_summary_n(s, lab)
+            check_scale(s, f"{variable} in group {lab!r}", None if samples is None else samples[k])
         if not (_scalar(a.ssd) > 0 or _scalar(b.ssd) > 0):
             raise DataError(
                 f"All values of {variable} are equal within each group (no spread), so the "
@@ -103,7 +123,7 @@ def build(
     else:
         (s,) = summaries
         what = f"the differences {labels[0]} minus {labels[1]}" if design == "paired" else variable
-        check_summary(s, what)
+        check_summary(s, what, None if samples is None else samples[0])
         c = procedures.one_sample(s, null=null, level=level, side=side, effect_ci=not trim)
         if design == "paired":
             comparison = f"{labels[0]} minus {labels[1]}"
@@ -124,7 +144,7 @@ def build(
             warns.append(f"{g.n_missing} missing value(s) dropped from {g.label}.")
     p = _scalar(c.p)
     if p == 0.0 or p < 1e-300:
-        warns.append("The p-value is below what double precision holds; log_p keeps its exact log.")
+        warns.append(_UNDERFLOW_NOTE)
     return TResult(
         design=design,
         variable=str(variable),
@@ -175,6 +195,7 @@ def build(
 
 
 ROBUST_EFFECT = "robust d (AKP)"
+_UNDERFLOW_NOTE = "The p-value is below what double precision holds; log_p keeps its exact log."
 
 
 def check_trim(trim, func: str, samples, pooled: bool) -> float:
@@ -265,6 +286,8 @@ def rebuild(result: TResult, **changes) -> TResult:
             opts[key] = changes.get(key, default)
     extra = result.groups[:-1] if result.design == "paired" else ()
     n_missing = tuple(g.n_missing for g in result.groups[-len(result.summaries) :])
+    # notes about the data (rows not used, missing values) stay; the p-value note is redone
+    kept = tuple(w for w in result.warnings if not w.startswith(_UNDERFLOW_NOTE[:20]))
     new = build(
         result.design,
         result.summaries,
@@ -275,6 +298,7 @@ def rebuild(result: TResult, **changes) -> TResult:
         n_missing=n_missing,
         extra_groups=extra,
         samples=result.samples,
+        warnings=kept,
         **opts,
     )
     return new

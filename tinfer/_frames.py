@@ -145,6 +145,12 @@ def paired_long(
     for g in chosen:
         mask = (key == g).to_numpy(dtype=bool, na_value=False)
         part = pd.DataFrame({"subject": subj[mask].to_numpy(), "value": vals[mask]})
+        no_id = int(part["subject"].isna().sum())
+        if no_id:  # missing ids would otherwise be matched with each other as one subject
+            raise DataError(
+                f"Column {subject!r} has {no_id} missing subject id(s) under {by!r} = {g!r}; "
+                "a row without an id cannot be paired. Drop or fill those rows first."
+            )
         dup = part["subject"][part["subject"].duplicated()]
         if len(dup):
             raise DataError(

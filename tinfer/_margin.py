@@ -204,6 +204,8 @@ def equivalence_for(
         reference = second if null == 0 else f"{second} {_signed(null)} {units or ''}".rstrip()
         subject = first
 
+    # one sample: "mean" or, with trim, "20% trimmed mean" (comparison is "<that> of <variable>")
+    what = comparison.split(" of ")[0] if design == "one-sample" else comparison
     if spec.worse is None:
         kind = "equivalence"
         asym = isinstance(spec.margin, tuple)
@@ -231,11 +233,10 @@ def equivalence_for(
                 conclusion = f"{who}not worse than {reference} {tail}"
             else:
                 conclusion = (
-                    f"not shown non-inferior: {who or 'the mean '}could be worse than "
+                    f"not shown non-inferior: {who or f'the {what} '}could be worse than "
                     f"{reference} {tail}"
                 )
 
-    what = "mean" if design == "one-sample" else comparison
     lower = upper = None
     if np.isfinite(low):
         lower = OneSidedTest(

@@ -7,7 +7,6 @@ HTML card (small functions returning strings) and an Altair chart.
 
 from __future__ import annotations
 
-import html
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -18,6 +17,8 @@ from ._errors import MissingDependencyError, ParameterError
 from ._format import fmt_level
 from ._validation import check_level, check_side, close_matches
 from .core import power as pw
+
+_GRID_TEXT_ROWS = 20  # grid points listed in the text form; to_frame() has them all
 
 DESIGNS = ("one-sample", "paired", "two-sample")
 _EQUIV_PREFIX = "equivalence-"
@@ -153,8 +154,11 @@ class PlanResult:
             frame = self.to_frame()
             show = ["n", "n2", "n_total", "effect", "diff", "power", "target"]
             show = [c for c in show if frame[c].notna().any()]
-            for row in _grid_rows(frame[show]):
-                lines.append("  " + row)
+            rows = _grid_rows(frame[show])  # header first, then one line per grid point
+            if len(rows) > _GRID_TEXT_ROWS + 1:
+                cut = len(rows) - 1 - _GRID_TEXT_ROWS
+                rows = [*rows[: _GRID_TEXT_ROWS + 1], f"... {cut} more row(s); see to_frame()"]
+            lines.extend("  " + row for row in rows)
         else:
             lines.extend("  " + line for line in _detail_lines(self))
         return "\n".join(lines)
@@ -343,59 +347,11 @@ def _grid_rows(frame) -> list[str]:
 
 
 # ============================================================================ HTML card
-_CARD_CSS = (
-    ".tinfer-plan{font-family:var(--jp-content-font-family,sans-serif);"
-    "border:1px solid var(--jp-border-color2,#ccc);padding:.5em .8em;max-width:46em}"
-    ".tinfer-plan-title{font-weight:600}"
-    ".tinfer-plan-sentence{margin:.4em 0}"
-    ".tinfer-plan-table td,.tinfer-plan-table th{padding:0 .8em 0 0;text-align:right}"
-    ".tinfer-plan-text{display:none}"
-)
-
-
-def _card_title(p: PlanResult) -> str:
-    what = {"n": "Sample size", "power": "Power", "effect": "Sensitivity"}[p.solved]
-    return (
-        f'<div class="tinfer-plan-title">{html.escape(what)}: {html.escape(_design_words(p))}</div>'
-    )
-
-
-def _card_sentence(p: PlanResult) -> str:
-    return f'<p class="tinfer-plan-sentence">{html.escape(p.sentence())}</p>'
-
-
-def _card_table(p: PlanResult, max_rows: int = 20) -> str:
-    frame = p.to_frame()
-    show = ["n", "n2", "n_total", "effect", "diff", "power", "target", "df", "ncp"]
-    show = [c for c in show if frame[c].notna().any()]
-    head = "".join(f"<th>{html.escape(c)}</th>" for c in show)
-    body = []
-    for rec in frame[show].head(max_rows).astype(object).itertuples(index=False):
-        cells = "".join(
-            f"<td>{html.escape(_g(v, 4) if isinstance(v, float) else str(v))}</td>" for v in rec
-        )
-        body.append(f"<tr>{cells}</tr>")
-    more = len(frame) - max_rows
-    foot = f'<p class="tinfer-plan-more">… {more} more rows</p>' if more > 0 else ""
-    return (
-        f'<table class="tinfer-plan-table"><thead><tr>{head}</tr></thead>'
-        f"<tbody>{''.join(body)}</tbody></table>{foot}"
-    )
-
-
-def _card_fallback(p: PlanResult) -> str:
-    return f'<pre class="tinfer-plan-text">{html.escape(str(p))}</pre>'
-
-
 def plan_card(p: PlanResult) -> str:
-    """Self-contained HTML card for a plan: CSS-only, every string escaped, text fallback."""
-    return (
-        f"<style>{_CARD_CSS}</style>"
-        f'<div class="tinfer-plan">{_card_fallback(p)}{_card_title(p)}{_card_sentence(p)}'
-        f"{_card_table(p)}"
-        f'<p class="tinfer-plan-method">{html.escape(p.method)}; level '
-        f"{html.escape(fmt_level(p.level))}, {html.escape(p.side)}</p></div>"
-    )
+    """The plan's HTML card (built by :func:`tinfer.display.plan.plan_card`)."""
+    from .display.plan import plan_card as build
+
+    return build(p)
 
 
 # ============================================================================ chart

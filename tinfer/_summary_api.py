@@ -80,7 +80,7 @@ def from_summary(
             _check_number(name, v, func)
         s = Summary.from_moments(float(n), float(mean), float(sd))
         if paired:
-            labs = tuple(labels) if labels is not None else ("first", "second")
+            labs = _two_labels(labels, func)
             return build("paired", (s,), labels=labs, **opts)
         return build("one-sample", (s,), labels=tuple(labels or (variable,)), **opts)
     for name, v in (("n", n), ("mean", mean), ("sd", sd)):
@@ -98,14 +98,27 @@ def from_summary(
         )
     s1 = Summary.from_moments(float(n[0]), float(mean[0]), float(sd[0]))
     s2 = Summary.from_moments(float(n[1]), float(mean[1]), float(sd[1]))
-    labs = tuple(labels) if labels is not None else ("first", "second")
+    labs = _two_labels(labels, func)
     return build("two-sample", (s1, s2), labels=labs, pooled=pooled, **opts)
+
+
+def _two_labels(labels, func) -> tuple[str, ...]:
+    """Two names (first, second), or a ParameterError."""
+    if labels is None:
+        return ("first", "second")
+    if isinstance(labels, str) or not _is_seq(labels) or len(labels) != 2:
+        raise ParameterError(
+            f"The 'labels' parameter of {func} must be two names (first, second). "
+            f"Got {labels!r} instead."
+        )
+    return tuple(labels)
 
 
 def _check_number(name, v, func) -> None:
     ok = isinstance(v, int | float | np.integer | np.floating) and not isinstance(v, bool)
-    if not ok or not np.isfinite(v) or (name == "sd" and v < 0) or (name == "n" and v < 1):
-        what = {"n": "a count of at least 1", "sd": "a non-negative number"}.get(
+    bad_n = name == "n" and ok and np.isfinite(v) and (v < 1 or v != int(v))
+    if not ok or not np.isfinite(v) or (name == "sd" and v < 0) or bad_n:
+        what = {"n": "a whole count of at least 1", "sd": "a non-negative number"}.get(
             name, "a finite number"
         )
         raise ParameterError(f"The {name!r} parameter of {func} must be {what}. Got {v!r} instead.")

@@ -46,7 +46,7 @@ def test_record_renders_offline_with_charts(path, browser, tmp_path):
     page.goto(html_file.as_uri())
     # Cards inline their SVG; Altair charts under tinfer.offline_charts() arrive as SVG outputs,
     # which nbconvert shows as data-URI images.
-    svgs = page.locator("svg.marks, [data-mime-type='image/svg+xml'] img")
+    svgs = page.locator(".tinfer-card svg, [data-mime-type='image/svg+xml'] img")
     assert svgs.count() >= 1, f"{path.name}: no chart in the record"
     svgs.first.scroll_into_view_if_needed()
     assert svgs.first.is_visible()

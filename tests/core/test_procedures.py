@@ -109,6 +109,41 @@ class TestTwoSample:
         _check(c, ref, 0.95, "two-sided")
         assert min(na, nb) - 1 <= float(c.df) <= na + nb - 2  # Welch df bounds, common practice
 
+    def test_means_near_1e9_keep_their_digits(self):
+        """t for means near 1e9 with spread 1e-3 equals the exact t to 1e-12 (was 1e-4)."""
+        from fractions import Fraction
+
+        import mpmath as mp
+
+        rng = np.random.default_rng(11)
+        a = 1e9 + rng.normal(0.0004, 0.001, 100)
+        b = 1e9 + rng.normal(0.0, 0.001, 100)
+
+        def exact(x):  # exact mean and ssd of the stored doubles (Fractions, stdlib)
+            m = sum(Fraction(v) for v in x) / len(x)
+            return m, sum((Fraction(v) - m) ** 2 for v in x)
+
+        (ma, sa), (mb, sb) = exact(a), exact(b)
+        with mp.workdps(40):
+            q = lambda f: mp.mpf(f.numerator) / f.denominator  # noqa: E731
+            t_one = float(q(ma - 10**9) / mp.sqrt(q(sa) / (99 * 100)))
+            t_two = float(q(ma - mb) / mp.sqrt((q(sa) + q(sb)) / (99 * 100)))
+        c = procedures.one_sample(Summary.of(a), null=1e9)
+        _close(c.t, t_one, rtol=1e-12)
+        c = procedures.two_sample(Summary.of(a), Summary.of(b))
+        _close(c.t, t_two, rtol=1e-12)
+
+    @pytest.mark.parametrize("scale", [1e-150, 1e150])
+    def test_welch_df_at_extreme_scales(self, scale):
+        """Welch df stays finite and scale-free at 1e-150 and 1e150 (was nan: squares of v)."""
+        rng = np.random.default_rng(21)
+        a, b = rng.normal(0.0, 1.0, 6), rng.normal(0.5, 2.0, 9)
+        c = procedures.two_sample(Summary.of(a * scale), Summary.of(b * scale))
+        ref = stats.ttest_ind(a, b, equal_var=False)  # scipy on the unscaled values
+        _close(c.df, ref.df, rtol=1e-12)
+        _close(c.t, ref.statistic, rtol=1e-12)
+        _close(c.p, ref.pvalue, rtol=1e-11)
+
     def test_tiny_p_keeps_relative_digits(self):
         """A large separation gives p ~ 1e-100: still equal to scipy to 1e-12 relative."""
         rng = np.random.default_rng(5)

@@ -62,6 +62,30 @@ class TestOf:
         assert float(Summary.of(x).n) == len(x) == (3 if name == "NumAcc1" else 1001)
 
 
+class TestOfDoubleDouble:
+    def test_mean_and_remainder_hold_the_exact_mean(self):
+        """mean + mean_lo equals the exact mean of the stored doubles (Fraction) to 1e-24."""
+        from fractions import Fraction
+
+        x = 1e9 + np.random.default_rng(11).normal(0.0004, 0.001, 100)
+        exact = sum(Fraction(v) for v in x) / len(x)  # exact rational mean, Python stdlib
+        s = Summary.of(x)
+        err = (Fraction(float(s.mean)) + Fraction(float(s.mean_lo))) - exact
+        assert abs(float(err)) < 1e-24 * 1e9
+        assert Summary(s.n, s.mean, s.ssd).mean_lo is None  # the remainder is optional
+
+
+class TestOfEmpty:
+    def test_no_values_give_n_zero_without_numpy_warnings(self):
+        """Summary.of([]) is n = 0 with no RuntimeWarning (all values missing is reported later)."""
+        import warnings
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            s = Summary.of(np.array([]))
+        assert float(s.n) == 0.0 and float(s.ssd) == 0.0  # common practice, no source
+
+
 @pytest.mark.parametrize("name", list(NUMACC))
 @pytest.mark.parametrize("chunks", [2, 3, 17, 1001])
 class TestMerge:

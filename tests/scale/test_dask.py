@@ -184,6 +184,15 @@ class TestCompare:
             m = dd.from_pandas(df, npartitions=2).tinfer.compare("v", by="arm", within="g")
         assert np.isnan(m.p[1]) and np.isfinite(m.p[0])
 
+    def test_rows_with_missing_keys_counted_once(self, client):
+        """Rows with a missing segment key are counted once, not once per group and partition."""
+        df = kiln(5)
+        df.loc[[3, 40, 41, 600], "kiln"] = None  # 4 rows, counted by hand
+        m = dd.from_pandas(df, npartitions=3).tinfer.compare("chip_mm", by="glaze", within="kiln")
+        assert m.warnings[0].startswith("4 row(s) with a missing segment key")
+        ref = df.tinfer.compare("chip_mm", by="glaze", within="kiln")
+        assert_same(m, ref, FIELDS)
+
     def test_import_tinfer_does_not_import_dask(self):
         """import tinfer alone leaves dask unimported (checked in a fresh interpreter)."""
         import subprocess

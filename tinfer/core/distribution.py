@@ -74,7 +74,9 @@ def log_sf(t, df) -> np.ndarray:
 
     For large positive t the tail is ``I_x(df/2, 1/2) / 2`` with ``x = df / (df + t^2)``;
     its log comes from the hypergeometric series of the incomplete beta function
-    (Abramowitz and Stegun 26.5.23, 26.7.1).
+    (Abramowitz and Stegun 26.5.23, 26.7.1). For df of 1000 and more (t below 1e100) the
+    series loses digits, and the log comes from the density times a Gauss-Laguerre
+    integral of the tail instead.
 
     Examples
     --------
@@ -87,8 +89,12 @@ def log_sf(t, df) -> np.ndarray:
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         direct = np.log(cdf(-t, df))
         normal = special.log_ndtr(-t)
-    use_series = (t > 1.0) & ~(direct > _LOG_TINY) & ~_is_normal(df)
+    deep = (t > 1.0) & ~(direct > _LOG_TINY) & ~_is_normal(df)
+    use_laguerre = deep & (df >= _SERIES_MAX_DF) & (t < 1e100)  # t * t stays finite
+    use_series = deep & ~use_laguerre
     out = np.where(_is_normal(df), normal, direct)
+    if use_laguerre.any():
+        out[use_laguerre] = _log_sf_laguerre(t[use_laguerre], df[use_laguerre])
     if use_series.any():  # the series (hyp2f1) is slow: evaluate it only where it is used
         ts, dfs = t[use_series], df[use_series]
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
@@ -106,6 +112,26 @@ def log_sf(t, df) -> np.ndarray:
             )
         out[use_series] = series
     return out
+
+
+# Above this df scipy's hyp2f1 loses digits (1e-13 at df = 1e5) and then returns nan (df of
+# 1e6 and more with t near 40); the Gauss-Laguerre integral below is exact to rounding there.
+_SERIES_MAX_DF = 1000.0
+_LAG_X, _LAG_W = np.polynomial.laguerre.laggauss(64)
+
+
+def _log_sf_laguerre(t: np.ndarray, df: np.ndarray) -> np.ndarray:
+    """log P(T > t) for t > 1 and large df: log f(t) plus the log of the integral of
+    f(t + s) / f(t) over s > 0, by 64-point Gauss-Laguerre after scaling s by the slope
+    -d log f / dt at t (the integrand is then close to exp(-v))."""
+    q = df + t * t
+    k = (df + 1.0) * t / q
+    s = _LAG_X[:, None] / k
+    expo = _LAG_X[:, None] - (df + 1.0) / 2.0 * np.log1p((2.0 * t * s + s * s) / q)
+    top = expo.max(axis=0)
+    log_int = top + np.log((_LAG_W[:, None] * np.exp(expo - top)).sum(axis=0)) - np.log(k)
+    log_f = log_gamma_half_ratio(df / 2) - 0.5 * np.log(df * np.pi)
+    return log_f - (df + 1.0) / 2.0 * np.log1p(t * t / df) + log_int
 
 
 def pdf(t, df) -> np.ndarray:

@@ -6,7 +6,7 @@ that broadcast) and returns a :class:`Computed` holding arrays of the same shape
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -88,10 +88,21 @@ def one_sample(
     """
     df = s.n - 1.0
     se = s.se
-    t_eff = (s.mean - null) / se
-    return _finish(
-        s.mean, se, df, null, level, side, t_eff, df, 1.0 / np.sqrt(s.n), effect_ci=effect_ci
+    # mean - null with the mean's low part, so that means near 1e9 keep their digits; the
+    # test runs on the shifted estimate and null is added back to the interval
+    shifted = (s.mean - null) + _lo(s)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t_eff = shifted / se
+    c = _finish(
+        shifted, se, df, 0.0, level, side, t_eff, df, 1.0 / np.sqrt(s.n), effect_ci=effect_ci
     )
+    return replace(
+        c, estimate=np.asarray(s.mean, float), ci_low=c.ci_low + null, ci_high=c.ci_high + null
+    )
+
+
+def _lo(s: Summary):
+    return 0.0 if s.mean_lo is None else s.mean_lo
 
 
 def two_sample(
@@ -110,7 +121,7 @@ def two_sample(
     the difference over the pooled SD, times the exact correction J(n_a + n_b - 2), with
     the interval from the noncentral t at n_a + n_b - 2 df, scaled by J (Hedges 1981).
     """
-    estimate = a.mean - b.mean
+    estimate = (a.mean - b.mean) + (_lo(a) - _lo(b))
     df_pool = a.n + b.n - 2.0
     sp2 = (a.ssd + b.ssd) / df_pool
     scale = np.sqrt(1.0 / a.n + 1.0 / b.n)
@@ -121,7 +132,10 @@ def two_sample(
         va, vb = a.var / a.n, b.var / b.n
         se = np.sqrt(va + vb)
         with np.errstate(divide="ignore", invalid="ignore"):
-            df = (va + vb) ** 2 / (va * va / (a.n - 1.0) + vb * vb / (b.n - 1.0))
+            # (va + vb)^2 / (va^2 / (n_a - 1) + vb^2 / (n_b - 1)) in shares of va + vb, so
+            # that squares of tiny or huge variances cannot underflow or overflow
+            w = va / (va + vb)
+            df = 1.0 / (w * w / (a.n - 1.0) + (1.0 - w) * (1.0 - w) / (b.n - 1.0))
     t_eff = (estimate - null) / (np.sqrt(sp2) * scale)
     return _finish(
         estimate,

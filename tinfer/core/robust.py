@@ -182,7 +182,8 @@ def yuen_two_sample(
     estimate = a.mean - b.mean
     se = np.sqrt(da + db)
     with np.errstate(divide="ignore", invalid="ignore"):
-        df = (da + db) ** 2 / (da * da / (a.h - 1.0) + db * db / (b.h - 1.0))
+        w = da / (da + db)  # Welch-type df in shares of da + db (no over- or underflow)
+        df = 1.0 / (w * w / (a.h - 1.0) + (1.0 - w) * (1.0 - w) / (b.h - 1.0))
         pooled = ((a.n - 1.0) * a.wvar + (b.n - 1.0) * b.wvar) / (a.n + b.n - 2.0)
         t_eff = (estimate - null) / se
         scale = winsor_normal_sd(a.trim) * se / np.sqrt(pooled)

@@ -18,7 +18,9 @@ class Summary:
     """Count, mean and sum of squared deviations of one or many samples.
 
     Each field is a float array (0-d for a single sample) so that the core can run many
-    tests at once.
+    tests at once. ``mean_lo`` (optional) is the rounding remainder of ``mean``, so that
+    ``mean + mean_lo`` is the mean to about twice double precision; the t procedures use it
+    in differences of means, which then keep their digits for means near 1e9.
 
     Examples
     --------
@@ -30,14 +32,29 @@ class Summary:
     n: np.ndarray
     mean: np.ndarray
     ssd: np.ndarray
+    mean_lo: np.ndarray | None = None
 
     @classmethod
     def of(cls, values) -> Summary:
-        """Two-pass summary of a one-dimensional array of finite values."""
+        """Two-pass summary of a one-dimensional array of finite values.
+
+        The corrected two-pass algorithm (Chan, Golub and LeVeque 1983, eq. 1.7): a first
+        mean ``m0``, deviations ``e = x - m0``, then mean ``m0 + sum(e) / n`` (kept with its
+        rounding remainder in ``mean_lo``) and ssd ``sum(e^2) - sum(e)^2 / n``.
+        """
         x = np.asarray(values, dtype=np.float64).ravel()
-        mean = x.mean()
-        dev = x - mean
-        return cls(np.asarray(float(x.size)), np.asarray(mean), np.asarray(dev @ dev))
+        if x.size == 0:  # no values (all missing): callers report it, numpy need not warn
+            nan = np.asarray(np.nan)
+            return cls(np.asarray(0.0), nan, np.asarray(0.0), np.asarray(0.0))
+        m0 = x.mean()
+        dev = x - m0
+        s1 = dev.sum()
+        with np.errstate(over="ignore", under="ignore"):  # callers check the ssd's range
+            corr = s1 / x.size
+            ssd = max(dev @ dev - s1 * corr, 0.0)
+        mean = m0 + corr
+        lo = (m0 - mean) + corr  # exact remainder (Fast2Sum: |corr| is tiny next to m0)
+        return cls(np.asarray(float(x.size)), np.asarray(mean), np.asarray(ssd), np.asarray(lo))
 
     @classmethod
     def from_moments(cls, n, mean, sd) -> Summary:

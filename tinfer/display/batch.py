@@ -8,7 +8,6 @@ histogram only bin counts, so chart size does not grow with the number of segmen
 
 from __future__ import annotations
 
-import html
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -20,8 +19,9 @@ if TYPE_CHECKING:  # pragma: no cover
     from .._compare import BatchResult
 
 TOP_ROWS = 5
-HIT = "#b0413e"  # discoveries
-PLAIN = "#5b6b7a"  # the rest
+CARD_FOREST_ROWS = 15  # rows per metric panel in the card's forest plot
+HIT = "#b0413e"  # discoveries (the card's stylesheet gives it the theme's accent red)
+PLAIN = "#6b7682"  # the rest (restyled to the theme's muted ink)
 RULE = "#8a96a3"
 
 
@@ -117,56 +117,71 @@ def text_card(r: BatchResult) -> str:
     return "\n".join(lines)
 
 
-def _table_html(r: BatchResult, rows: list[dict[str, str]]) -> str:
-    head = "".join(f"<th>{html.escape(h)}</th>" for _, h in HEADERS)
-    body = []
-    for row in rows:
-        cls = ' class="tinfer-batch-hit"' if row["hit"] == "yes" else ""
-        cells = "".join(f"<td>{html.escape(row[k])}</td>" for k, _ in HEADERS)
-        body.append(f"<tr{cls}>{cells}</tr>")
-    return (
-        f'<table class="tinfer-batch-table"><caption>Smallest p-values '
-        f"({html.escape(fmt_level(r.level))} intervals)</caption>"
-        f"<thead><tr>{head}</tr></thead><tbody>{''.join(body)}</tbody></table>"
-    )
+def card_rows(rows: list[dict[str, str]]) -> list[list[str]]:
+    """The top rows as table cells (segment first), unescaped."""
+    return [[row[k] for k, _ in HEADERS] for row in rows]
 
 
-def _notes_html(r: BatchResult) -> str:
-    if not r.warnings:
-        return ""
-    items = "".join(f"<li>{html.escape(w)}</li>" for w in r.warnings)
-    return f'<ul class="tinfer-batch-notes">{items}</ul>'
+def provenance(r: BatchResult) -> list[tuple[str, str]]:
+    """tinfer's version and the settings of the batch (values escaped)."""
+    from .card import _version, esc
+
+    return [
+        ("tinfer", esc(_version())),
+        ("comparisons", esc(f"{r.n_tests:,}")),
+        ("level", esc(fmt_level(r.level))),
+        ("side", esc(r.side)),
+        ("null", esc(fmt_num(r.null))),
+        ("error rate", esc(f"{r.rate:g}")),
+        ("adjustment", esc(r.adjust_name)),
+        ("pooled", "yes" if r.pooled else "no"),
+    ]
 
 
-STYLE = (
-    "<style>"
-    ".tinfer-batch{font-family:var(--jp-ui-font-family,system-ui,sans-serif);"
-    "color:var(--tinfer-ink,var(--jp-content-font-color1,#2f3a45));max-width:56em}"
-    ".tinfer-batch-title{font-weight:600;margin:0 0 .2em}"
-    ".tinfer-batch-headline{margin:0 0 .5em}"
-    ".tinfer-batch-table{border-collapse:collapse;font-size:.9em}"
-    ".tinfer-batch-table th,.tinfer-batch-table td{padding:.15em .6em;text-align:left;"
-    "border-bottom:1px solid var(--jp-border-color2,#d5dbe1)}"
-    ".tinfer-batch-table caption{text-align:left;font-style:italic}"
-    f".tinfer-batch-hit td{{color:var(--tinfer-hit,{HIT});font-weight:600}}"
-    ".tinfer-batch-fallback{display:none}"
-    ".tinfer-batch-notes{color:var(--jp-warn-color0,#8a5a00);font-size:.9em}"
-    "</style>"
-)
+def html_card(r: BatchResult, chart: bool = True) -> str:
+    """The HTML card: the shared skeleton, the smallest p-values and the forest plot.
 
+    The forest plot shows the ``CARD_FOREST_ROWS`` smallest p-values (one panel per
+    metric), so the card's size does not grow with the number of segments.
 
-def html_card(r: BatchResult) -> str:
-    """HTML card with a plain-text fallback inside a ``<pre>`` for viewers without CSS."""
+    Examples
+    --------
+    >>> import pandas as pd, tinfer
+    >>> t = pd.DataFrame({"n_a": [12, 20], "mean_a": [5.1, 7.4], "sd_a": [1.2, 2.0],
+    ...                   "n_b": [15, 18], "mean_b": [4.3, 7.1], "sd_b": [1.5, 1.9]})
+    >>> page = html_card(tinfer.compare_summaries(t), chart=False)
+    >>> page.startswith('<div class="tinfer-card">') and "2 comparisons tested" in page
+    True
+    """
+    from . import card
+
     rows = top_rows(r)
-    table = _table_html(r, rows) if rows else ""
-    fallback = html.escape(text_card(r))
-    return (
-        f'{STYLE}<div class="tinfer-batch">'
-        f'<pre class="tinfer-batch-fallback">{fallback}</pre>'
-        f'<p class="tinfer-batch-title">{html.escape(subject(r))}</p>'
-        f'<p class="tinfer-batch-headline">{html.escape(headline(r))}</p>'
-        f"{table}{_notes_html(r)}</div>"
+    table = ""
+    if rows:
+        table = card.data_table(
+            [h for _, h in HEADERS],
+            card_rows(rows),
+            ["tinfer-hit" if row["hit"] == "yes" else "" for row in rows],
+            caption=f"Smallest p-values ({fmt_level(r.level)} intervals)",
+        )
+    chart_html = ""
+    if chart and r.n_tests:
+        chart_html = card.altair_block(
+            lambda: forest_chart(r, top=CARD_FOREST_ROWS),
+            f"Forest plot of the {CARD_FOREST_ROWS} smallest p-values per metric",
+            wide=True,
+        )
+    dcount = r.n_discoveries
+    chip = f"{dcount:,} {'discovery' if dcount == 1 else 'discoveries'}"
+    inner = (
+        card.head(subject(r), chip, "tinfer-chip-out" if dcount else "tinfer-chip-in")
+        + card.headline_p(headline(r))
+        + table
+        + chart_html
+        + card.notes(list(r.warnings))
+        + card.provenance(provenance(r))
     )
+    return card.wrap(text_card(r), inner)
 
 
 # --------------------------------------------------------------------------- charts

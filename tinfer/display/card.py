@@ -13,6 +13,7 @@ from __future__ import annotations
 import datetime as _dt
 import html as _html
 import math
+import re
 from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING
 
@@ -83,13 +84,89 @@ def provenance(items: Iterable[tuple[str, str]]) -> str:
     return f'<div class="tinfer-provenance">{body}</div>'
 
 
-def chart_block(spec_fn, label: str) -> str:
-    """The chart as inline SVG, or a short note when the display extras are missing."""
+_SVG_CLASS = re.compile(r'(<[A-Za-z][^<>]*?)\s+class="[^"]*"')
+
+
+def bare_svg(svg: str) -> str:
+    """The SVG without vl-convert's class attributes (``marks``, ``background``...).
+
+    A host page's own rules for such common names can then never restyle the chart, and
+    every class left in a card is one of ours.
+
+    >>> bare_svg('<svg class="marks" width="2"><g class="mark-group role-axis"></g></svg>')
+    '<svg width="2"><g></g></svg>'
+    """
+    return _SVG_CLASS.sub(r"\1", svg)
+
+
+def chart_block(spec_fn, label: str, wide: bool = False) -> str:
+    """The chart as inline SVG, or a short note when the display extras are missing.
+
+    ``wide`` marks a chart that sits below the tables, across the card, rather than beside
+    them.
+    """
+    cls = "tinfer-chart tinfer-chart-wide" if wide else "tinfer-chart"
     try:
-        svg = charts.to_svg(spec_fn())
+        svg = bare_svg(charts.to_svg(spec_fn()))
     except MissingDependencyError as exc:
-        return f'<div class="tinfer-chart tinfer-missing-chart">{esc(exc)}</div>'
-    return f'<div class="tinfer-chart" role="img" aria-label="{esc(label)}">{svg}</div>'
+        return f'<div class="{cls} tinfer-missing-chart">{esc(exc)}</div>'
+    return f'<div class="{cls}" role="img" aria-label="{esc(label)}">{svg}</div>'
+
+
+def altair_block(build, label: str, wide: bool = False) -> str:
+    """An Altair chart built by ``build()``, in the card palette, as inline SVG.
+
+    The chart is themed by :func:`tinfer.display.charts.card_spec` so that the stylesheet
+    can follow dark themes. Missing display extras give a short note; a chart that fails
+    for any other reason gives a note too, so that the card's numbers always show.
+    """
+    try:
+        return chart_block(lambda: charts.card_spec(build()), label, wide)
+    except Exception as exc:  # a broken chart must not hide the numbers
+        cls = "tinfer-chart tinfer-chart-wide" if wide else "tinfer-chart"
+        return (
+            f'<div class="{cls} tinfer-missing-chart">The chart could not be drawn '
+            f"({esc(type(exc).__name__)}: {esc(exc)}).</div>"
+        )
+
+
+def data_table(
+    header: Sequence[str],
+    rows: Iterable[Sequence[str]],
+    row_classes: Iterable[str] | None = None,
+    caption: str = "",
+) -> str:
+    """A table with a header row; the first column names the row, the others are numbers.
+
+    Cells are plain strings and are escaped here. ``row_classes`` gives each body row a class
+    (or "" for none).
+
+    >>> data_table(["sample", "n"], [["<a>", "3"]])
+    ... # doctest: +NORMALIZE_WHITESPACE
+    '<table class="tinfer-table"><thead><tr><th scope="col">sample</th><th scope="col"
+    class="tinfer-num">n</th></tr></thead><tbody><tr><th scope="row">&lt;a&gt;</th><td
+    class="tinfer-num">3</td></tr></tbody></table>'
+    """
+    rows = [list(r) for r in rows]
+    classes = list(row_classes) if row_classes is not None else [""] * len(rows)
+    cap = f"<caption>{esc(caption)}</caption>" if caption else ""
+    heads = [f'<th scope="col">{esc(header[0])}</th>']
+    heads += [f'<th scope="col" class="tinfer-num">{esc(h)}</th>' for h in header[1:]]
+    body = []
+    for row, cls in zip(rows, classes, strict=True):
+        cells = f'<th scope="row">{esc(row[0])}</th>'
+        cells += "".join(f'<td class="tinfer-num">{esc(c)}</td>' for c in row[1:])
+        attr = f' class="{cls}"' if cls else ""
+        body.append(f"<tr{attr}>{cells}</tr>")
+    return (
+        f'<table class="tinfer-table">{cap}<thead><tr>{"".join(heads)}</tr></thead>'
+        f"<tbody>{''.join(body)}</tbody></table>"
+    )
+
+
+def headline_p(text: str) -> str:
+    """The headline sentence of a card."""
+    return f'<p class="tinfer-headline">{esc(text)}</p>'
 
 
 def num(text: str, strong: bool = False) -> str:

@@ -577,6 +577,67 @@ def area_words(low: float | None, high: float | None) -> str:
     return f"P({fmt_num(low)} < T < {fmt_num(high)})"
 
 
+# --------------------------------------------------------------------------- card palette
+# Colours for series in charts drawn with Altair's defaults (plans, batches, checks). The
+# first is CURVE, so the stylesheet gives it the theme's curve colour.
+SERIES = [CURVE, "#c0612b", "#5f8f4e", "#8a5fa8", "#b08a1e", "#4f8d94", "#a0527a", "#6b7682"]
+# Named colours Altair charts use, turned into palette colours the stylesheet restyles.
+NAMED = {"black": INK, "gray": REFERENCE, "grey": REFERENCE}
+
+
+def _merge(base: dict[str, Any], extra: dict[str, Any]) -> dict[str, Any]:
+    out = dict(base)
+    for k, v in extra.items():
+        out[k] = _merge(out[k], v) if isinstance(v, dict) and isinstance(out.get(k), dict) else v
+    return out
+
+
+def _renamed(node: Any) -> Any:
+    """Replace named colours in colour properties only (never in data, titles or labels)."""
+    if isinstance(node, dict):
+        out = {}
+        for k, v in node.items():
+            if k in ("data", "datasets"):
+                out[k] = v
+            elif k in ("color", "fill", "stroke") and isinstance(v, str):
+                out[k] = NAMED.get(v.lower(), v)
+            else:
+                out[k] = _renamed(v)
+        return out
+    if isinstance(node, list):
+        return [_renamed(v) for v in node]
+    return node
+
+
+def card_spec(chart_or_spec) -> dict[str, Any]:
+    """A chart's Vega-Lite dict in the card palette: our fonts, axes, legends and series.
+
+    Marks carry no ARIA labels (the card describes the chart once, on its container).
+
+    Named colours ("black", "gray") become palette colours, so that the card's stylesheet can
+    restyle them for dark themes. The data are left as they are.
+
+    Examples
+    --------
+    >>> spec = card_spec({"mark": {"type": "rule", "color": "black"}, "data": {"values": []}})
+    >>> spec["mark"]["color"] == INK, spec["config"]["range"]["category"][0] == CURVE
+    (True, True)
+    """
+    spec = _renamed(chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict())
+    extra = {
+        # the card's chart element carries one description; per-mark ARIA labels would
+        # repeat every point's values in the SVG and make it grow with the points drawn
+        "aria": False,
+        # room for labels that the browser's font sets wider than vl-convert measured
+        "padding": {"left": 24, "top": 4, "right": 12, "bottom": 4},
+        "legend": {"labelColor": INK, "titleColor": INK, "labelFontSize": 10, "titleFontSize": 10},
+        "header": {"labelColor": INK, "titleColor": INK},
+        "range": {"category": SERIES},
+    }
+    spec["config"] = _merge(_merge(spec.get("config", {}), config()), extra)
+    return spec
+
+
 # --------------------------------------------------------------------------- rendering
 def to_svg(chart_or_spec) -> str:
     """Render a chart (or a Vega-Lite dict) to SVG with vl-convert, offline.

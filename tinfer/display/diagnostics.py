@@ -1,8 +1,8 @@
 """Cards and charts for assumption checks and for the bootstrap cross-check.
 
-Cards are built by small functions that return HTML strings; every user string goes
-through :func:`html.escape`; a plain-text fallback shows where the stylesheet does not
-load (the inline style hides it and reveals the card). No JavaScript. Charts are Altair
+Cards use the shared skeleton of :mod:`tinfer.display.card` (packaged stylesheet, a
+plain-text fallback shown where styles are stripped, charts as inline SVG); every user
+string goes through :func:`html.escape`. No JavaScript, no ids. Charts are Altair
 objects, never displayed here; altair is imported when a chart is first asked for.
 Chart data are bounded: at most ``MAX_POINTS`` points per sample (evenly spaced order
 statistics for the Q-Q plot; only flagged values in the box plot for large n), and the
@@ -11,8 +11,6 @@ bootstrap histogram is binned in numpy, so a chart's size does not grow with n.
 
 from __future__ import annotations
 
-import html
-from collections.abc import Iterable
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -21,58 +19,20 @@ from .._errors import MissingDependencyError
 from .._format import fmt_level, fmt_num
 from ..core import distribution as dist
 from ..core.diagnostics import HAMPEL_K, MAX_LISTED
+from . import card
+from .card import esc
 
 if TYPE_CHECKING:  # pragma: no cover
     from .._diagnostics import BootstrapCheck, Diagnostics
 
-POINT = "#2b6c8f"
+# Chart colours from the card palette (tinfer/display/charts.py), so that the stylesheet
+# restyles points, flags, medians and whiskers for dark themes.
+POINT = "#1f5f8b"
 LINE = "#c0612b"
 BOX = "#9fb8c9"
-FLAG = "#b23a48"
-MUTED = "#7a8591"
-
-STYLE = """<style>
-.tinfer-chk-fallback { display: none; }
-.tinfer-chk { display: block !important;
-  --tinfer-chk-fg: var(--jp-content-font-color1, #1f2328);
-  --tinfer-chk-muted: var(--jp-content-font-color2, #5b6570);
-  --tinfer-chk-line: var(--jp-border-color2, #d5dbe1);
-  --tinfer-chk-note: var(--jp-layout-color2, #eef3f7);
-  color: var(--tinfer-chk-fg); font-size: 13px; max-width: 46em;
-  border: 1px solid var(--tinfer-chk-line); border-radius: 6px; padding: 0.6em 0.9em; }
-@media (prefers-color-scheme: dark) {
-  body:not([data-jp-theme-light]) .tinfer-chk {
-    --tinfer-chk-fg: #e6e8ea; --tinfer-chk-muted: #a9b1b9;
-    --tinfer-chk-line: #3a4149; --tinfer-chk-note: #252b31; } }
-.tinfer-chk-title { font-weight: 600; margin: 0 0 0.3em 0; }
-.tinfer-chk-sub { color: var(--tinfer-chk-muted); margin-bottom: 0.5em; }
-.tinfer-chk-advice { background: var(--tinfer-chk-note); border-radius: 4px;
-  padding: 0.45em 0.7em; margin: 0.4em 0 0.6em 0; }
-.tinfer-chk table { border-collapse: collapse; margin: 0.2em 0; }
-.tinfer-chk th, .tinfer-chk td { padding: 0.15em 0.8em 0.15em 0; text-align: right;
-  border-bottom: 1px solid var(--tinfer-chk-line); }
-.tinfer-chk th:first-child, .tinfer-chk td:first-child { text-align: left; }
-.tinfer-chk-foot { color: var(--tinfer-chk-muted); font-size: 12px; margin-top: 0.5em; }
-.tinfer-chk-foot ul { margin: 0.2em 0; padding-left: 1.2em; }
-</style>"""
-
-
-def _e(text: object) -> str:
-    return html.escape(str(text), quote=True)
-
-
-def _wrap(text: str, body: str) -> str:
-    """The card: inline style, a text fallback, and the HTML body hidden until styled."""
-    return (
-        f"{STYLE}<pre class='tinfer-chk-fallback'>{_e(text)}</pre>"
-        f"<div class='tinfer-chk' style='display:none'>{body}</div>"
-    )
-
-
-def _table(header: Iterable[str], rows: Iterable[Iterable[str]]) -> str:
-    head = "".join(f"<th>{_e(h)}</th>" for h in header)
-    body = "".join("<tr>" + "".join(f"<td>{_e(c)}</td>" for c in row) + "</tr>" for row in rows)
-    return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
+FLAG = "#b0413e"
+MUTED = "#6b7682"
+MEDIAN = "#2f3a45"
 
 
 def _outlier_cell(shape, decimals: int) -> str:
@@ -83,52 +43,87 @@ def _outlier_cell(shape, decimals: int) -> str:
     return f"{shape.n_outliers} ({shown}{more})"
 
 
-def diagnostics_card(d: Diagnostics) -> str:
-    """HTML card for :class:`~tinfer._diagnostics.Diagnostics`.
+def shape_rows(d: Diagnostics) -> tuple[list[str], list[list[str]]]:
+    """Header and rows of the per-sample table (one column per sample), unescaped."""
+    dec = d.decimals
+    header = ["", *(s.label for s in d.shapes)]
+    rows = [
+        ["n", *(f"{s.n:,}" for s in d.shapes)],
+        ["skewness G1", *(fmt_num(s.skewness, 2) for s in d.shapes)],
+        ["excess kurtosis G2", *(fmt_num(s.excess_kurtosis, 2) for s in d.shapes)],
+        ["normality test", *(s.test_name or "not run" for s in d.shapes)],
+        ["normality p", *(f"{s.test_p:.3g}" if s.test_name else "–" for s in d.shapes)],
+        ["median", *(fmt_num(s.median, dec) for s in d.shapes)],
+        ["MAD × 1.4826", *(fmt_num(s.mad_sd, dec + 1) for s in d.shapes)],
+        ["outliers", *(_outlier_cell(s, dec) for s in d.shapes)],
+    ]
+    if np.isfinite(d.variance_ratio):
+        rows.append(
+            ["variance ratio (larger over smaller)", f"{d.variance_ratio:.2f}"]
+            + [""] * (len(d.shapes) - 1)
+        )
+    return header, rows
+
+
+def diagnostics_card(d: Diagnostics, chart: bool = True) -> str:
+    """HTML card for :class:`~tinfer._diagnostics.Diagnostics`: advice, shapes, Q-Q and box.
 
     Examples
     --------
     >>> import pandas as pd, tinfer
     >>> df = pd.DataFrame({"<g>": [4.1, 3.9, 4.4, 4.0, 4.2, 3.8, 9.5]})
-    >>> html_text = diagnostics_card(df.tinfer.one_sample("<g>").check())
+    >>> html_text = diagnostics_card(df.tinfer.one_sample("<g>").check(), chart=False)
     >>> "&lt;g&gt;" in html_text and "<g>" not in html_text
     True
     """
-    dec = d.decimals
-    header = ["", *(s.label for s in d.shapes)]
-    rows = [
-        ["n", *(str(s.n) for s in d.shapes)],
-        ["skewness G1", *(fmt_num(s.skewness, 2) for s in d.shapes)],
-        ["excess kurtosis G2", *(fmt_num(s.excess_kurtosis, 2) for s in d.shapes)],
-        ["normality test", *(s.test_name or "not run" for s in d.shapes)],
-        ["normality p", *(f"{s.test_p:.3g}" if s.test_name else "" for s in d.shapes)],
-        ["median", *(fmt_num(s.median, dec) for s in d.shapes)],
-        ["MAD × 1.4826", *(fmt_num(s.mad_sd, dec + 1) for s in d.shapes)],
-        ["outliers", *(_outlier_cell(s, dec) for s in d.shapes)],
-    ]
-    ratio = (
-        f"<div>Variance ratio (larger over smaller): {d.variance_ratio:.2f}</div>"
-        if np.isfinite(d.variance_ratio)
+    header, rows = shape_rows(d)
+    basis = "".join(f"<li>{esc(b)}</li>" for b in d.basis)
+    foot = (
+        '<p class="tinfer-foot">Skewness and excess kurtosis are the bias-corrected sample '
+        f"versions G1 and G2. Outliers: {esc(d.outlier_rule)}. The advice leaves the test "
+        "you ran unchanged.</p>"
+        '<details class="tinfer-details"><summary>What the advice rests on</summary>'
+        f"<ul>{basis}</ul></details>"
+    )
+    chart_html = (
+        card.altair_block(
+            lambda: diagnostics_chart(d),
+            f"Normal Q-Q plot and box plot of {d.variable}",
+            wide=True,
+        )
+        if chart
         else ""
     )
-    basis = "".join(f"<li>{_e(b)}</li>" for b in d.basis)
-    body = (
-        "<div class='tinfer-chk-title'>Assumption checks</div>"
-        f"<div class='tinfer-chk-sub'>{_e(d.method)}: {_e(d.comparison)}, "
-        f"variable {_e(d.variable)}</div>"
-        f"<div class='tinfer-chk-advice'><strong>Advice.</strong> {_e(d.advice)}</div>"
-        f"{_table(header, rows)}{ratio}"
-        "<div class='tinfer-chk-foot'>"
-        "Skewness and excess kurtosis are the bias-corrected sample versions G1 and G2. "
-        f"Outliers: {_e(d.outlier_rule)}. The advice leaves the test you ran unchanged."
-        f"<details><summary>What the advice rests on</summary><ul>{basis}</ul></details>"
-        "Charts: <code>.chart()</code> (Q-Q and box plot).</div>"
+    prov = [
+        ("tinfer", esc(card._version())),
+        ("variable", esc(d.variable)),
+        ("design", esc(d.design)),
+        ("values", esc(", ".join(f"{s.n:,}" for s in d.shapes))),
+    ]
+    inner = (
+        card.head(f"Assumption checks · {d.method}")
+        + card.headline_p(d.advice)
+        + f'<p class="tinfer-foot">{esc(d.comparison)}, variable {esc(d.variable)}</p>'
+        + card.section("shape per sample")
+        + card.data_table(header, rows)
+        + foot
+        + chart_html
+        + card.provenance(prov)
     )
-    return _wrap(repr(d), body)
+    return card.wrap(str(d), inner)
 
 
-def bootstrap_card(b: BootstrapCheck) -> str:
-    """HTML card for :class:`~tinfer._diagnostics.BootstrapCheck`."""
+def bootstrap_card(b: BootstrapCheck, chart: bool = True) -> str:
+    """HTML card for :class:`~tinfer._diagnostics.BootstrapCheck`: both intervals and t*.
+
+    Examples
+    --------
+    >>> import pandas as pd, tinfer
+    >>> df = pd.DataFrame({"s": [3.1, 2.4, 5.8, 3.3, 2.9, 4.4, 3.0, 7.9, 3.6, 2.2]})
+    >>> b = df.tinfer.one_sample("s").bootstrap(n_resamples=999, seed=2)
+    >>> "bootstrap-t" in bootstrap_card(b, chart=False)
+    True
+    """
     dec = b.decimals
     lv = fmt_level(b.level)
     rows = [
@@ -136,23 +131,52 @@ def bootstrap_card(b: BootstrapCheck) -> str:
         [f"t (df = {b.df:.4g})", *(fmt_num(v, dec) for v in b.t_interval)],
     ]
     unit = f" {b.units}" if b.units else ""
+    figures = card.figures_table(
+        [
+            ("Estimate", card.num(fmt_num(b.estimate, dec) + unit, strong=True)),
+            (
+                "t* quantiles",
+                card.num(f"{b.t_star_quantiles[0]:.3f} and {b.t_star_quantiles[1]:.3f}")
+                + card.aside("(in place of the t critical values)"),
+            ),
+            ("Resamples", card.num(f"{b.n_resamples:,}") + card.aside(f"(seed {b.seed})")),
+        ]
+    )
     notes = (
-        f"<div>{b.n_degenerate} resample(s) had no spread (t* infinite or undefined).</div>"
+        [f"{b.n_degenerate} resample(s) had no spread (t* infinite or undefined)."]
         if b.n_degenerate
+        else []
+    )
+    chart_html = (
+        card.altair_block(
+            lambda: bootstrap_chart(b).properties(width=330),
+            "Histogram of the bootstrap t* over the t density",
+        )
+        if chart
         else ""
     )
-    body = (
-        "<div class='tinfer-chk-title'>Bootstrap-t cross-check</div>"
-        f"<div class='tinfer-chk-sub'>{_e(b.statistic)}: {_e(b.comparison)}; estimate "
-        f"{_e(fmt_num(b.estimate, dec) + unit)}</div>"
-        f"<div class='tinfer-chk-advice'>{_e(b.verdict)}</div>"
-        f"{_table([f'{lv} interval', 'low', 'high'], rows)}{notes}"
-        "<div class='tinfer-chk-foot'>"
-        f"{b.n_resamples} resamples, seed {b.seed}. The t* quantiles "
-        f"{b.t_star_quantiles[0]:.3f} and {b.t_star_quantiles[1]:.3f} take the place of the "
-        "t critical values (percentile-t). Chart: <code>.chart()</code>.</div>"
+    numbers = (
+        figures
+        + card.section(f"{lv} intervals")
+        + card.data_table(["interval", "low", "high"], rows)
     )
-    return _wrap(repr(b), body)
+    prov = [
+        ("tinfer", esc(card._version())),
+        ("level", esc(lv)),
+        ("side", esc(b.side)),
+        ("resamples", esc(f"{b.n_resamples:,}")),
+        ("seed", esc(b.seed)),
+    ]
+    inner = (
+        card.head(f"Bootstrap-t cross-check · {b.statistic}")
+        + card.headline_p(b.verdict)
+        + f'<p class="tinfer-foot">{esc(b.comparison)}</p>'
+        + f'<div class="tinfer-cols"><div class="tinfer-numbers">{numbers}</div>'
+        + f"{chart_html}</div>"
+        + card.notes(notes)
+        + card.provenance(prov)
+    )
+    return card.wrap(str(b), inner)
 
 
 # ---------------------------------------------------------------------- charts
@@ -279,9 +303,7 @@ def box_chart(d: Diagnostics):
     box = (
         alt.Chart(boxes).mark_bar(size=22, color=BOX, opacity=0.8).encode(y=y, x="q1:Q", x2="q3:Q")
     )
-    mid = (
-        alt.Chart(boxes).mark_tick(size=22, thickness=2, color="#24435a").encode(y=y, x="median:Q")
-    )
+    mid = alt.Chart(boxes).mark_tick(size=22, thickness=2, color=MEDIAN).encode(y=y, x="median:Q")
     dots = (
         alt.Chart(pts)
         .mark_tick(size=12, thickness=1.2, opacity=0.7)

@@ -50,9 +50,9 @@ def html(obj: Any, chart: bool = True) -> str:
 
     Parameters
     ----------
-    obj : TResult, TDistribution or TDistView
-        What to show. Other tinfer objects with their own display (plans, diagnostics)
-        return the HTML of their ``_repr_mimebundle_``.
+    obj : TResult, TDistribution, TDistView, PlanResult, BatchResult, Diagnostics or BootstrapCheck
+        What to show. Every one of these cards shares one skeleton (stylesheet, text
+        fallback, kicker, headline, tables, chart, provenance).
     chart : bool
         Embed the chart as inline SVG (needs altair's sibling vl-convert, not a network).
 
@@ -73,7 +73,28 @@ def html(obj: Any, chart: bool = True) -> str:
         return card.tdist_card(obj.show(), chart=chart)
     if isinstance(obj, TDistView):
         return card.tdist_card(obj, chart=chart)
-    if hasattr(obj, "_repr_mimebundle_"):  # other tinfer objects build their own cards
+    from .._compare import BatchResult
+    from .._diagnostics import BootstrapCheck, Diagnostics
+    from .._plan import PlanResult
+
+    if isinstance(obj, PlanResult):
+        from .plan import plan_card
+
+        return plan_card(obj, chart=chart)
+    if isinstance(obj, BatchResult):
+        from .batch import html_card
+
+        return html_card(obj, chart=chart)
+    if isinstance(obj, Diagnostics | BootstrapCheck):
+        from . import diagnostics
+
+        build = (
+            diagnostics.diagnostics_card
+            if isinstance(obj, Diagnostics)
+            else diagnostics.bootstrap_card
+        )
+        return build(obj, chart=chart)
+    if hasattr(obj, "_repr_mimebundle_"):  # any other object with its own card
         return obj._repr_mimebundle_()["text/html"]
     raise TypeError(f"tinfer has no card for {type(obj).__name__} objects.")
 

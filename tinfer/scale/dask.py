@@ -68,8 +68,8 @@ def _metric_values(pdf: pd.DataFrame, cols: tuple, kind: str) -> np.ndarray:
 def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.DataFrame:
     """Summaries of one partition: key columns, metric index, n, mean, ssd, missing count.
 
-    Rows with a missing key are counted in the column ``__dropped__`` of every output row
-    (one extra row carries the count when no group is present).
+    Rows with a missing key are counted once, in the column ``__dropped__`` of the first
+    output row (one extra row carries the count when no group is present).
     """
     n_rows = len(pdf)
     if keys:
@@ -95,7 +95,9 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
         out[_METRIC] = np.full(n_groups, j, dtype=np.int64)
         out["__n__"], out["__mean__"], out["__lo__"], out["__ssd__"] = n, mean, lo, ssd
         out["__missing__"] = miss.astype(np.int64)
-        out[_DROPPED] = np.full(n_groups, dropped if j == 0 else 0, dtype=np.int64)
+        out[_DROPPED] = np.zeros(n_groups, dtype=np.int64)
+        if j == 0 and n_groups:  # once per partition: the client sums this column
+            out[_DROPPED][0] = dropped
         frames.append(pd.DataFrame(out))
     table = pd.concat(frames, ignore_index=True)
     if dropped and n_groups == 0:
@@ -195,9 +197,10 @@ def _one(table: pd.DataFrame, metric: int, mask=None) -> tuple[Summary, int]:
     if rows.empty:
         return Summary(np.asarray(0.0), np.asarray(np.nan), np.asarray(0.0)), 0
     r = rows.iloc[0]
-    return Summary(np.asarray(r["n"]), np.asarray(r["mean"]), np.asarray(r["ssd"])), int(
-        r["n_missing"]
+    s = Summary(
+        np.asarray(r["n"]), np.asarray(r["mean"]), np.asarray(r["ssd"]), np.asarray(r["mean_lo"])
     )
+    return s, int(r["n_missing"])
 
 
 @register_dataframe_accessor("tinfer")
@@ -257,13 +260,20 @@ class TinferDaskAccessor:
 
         See ``DataFrame.tinfer.two_sample``.
         """
-        table, _ = merged_summaries(self._obj, [by], [(str(column), (column,), "value")])
+        table, no_key = merged_summaries(self._obj, [by], [(str(column), (column,), "value")])
         levels = table[by].to_numpy(dtype=object)
         first, second = _compare._choose_arms(levels, np.ones(len(levels), bool), by, groups)
         sums, miss, labs = [], [], []
         for i in (first, second):
             row = table.iloc[i]
-            sums.append(Summary(np.asarray(row["n"]), np.asarray(row["mean"]), row["ssd"]))
+            sums.append(
+                Summary(
+                    np.asarray(row["n"]),
+                    np.asarray(row["mean"]),
+                    np.asarray(row["ssd"]),
+                    np.asarray(row["mean_lo"]),
+                )
+            )
             miss.append(int(row["n_missing"]))
             labs.append(str(_compare._py(levels[i])))
         return build(
@@ -278,6 +288,9 @@ class TinferDaskAccessor:
             level=level,
             pooled=pooled,
             units=units,
+            warnings=(f"{no_key} row(s) with a missing {by!r} value were not used.",)
+            if no_key
+            else (),
         )
 
     def paired(
@@ -371,7 +384,8 @@ class TinferDaskAccessor:
             result = _compare.compare_summaries(table, within=keys, metric="metric", **opts)
         notes = list(result.warnings)
         if dropped:
-            notes.insert(0, f"{dropped} row(s) with a missing segment key were not used.")
+            what = "segment key" if by is None else f"segment key or {by!r} value"
+            notes.insert(0, f"{dropped} row(s) with a missing {what} were not used.")
         missing = int(table["n_missing"].sum())
         if missing:
             notes.append(f"{missing} missing value(s) dropped.")
