@@ -78,6 +78,21 @@ def _probe(obj: Any, **options: Any) -> bool:
     return True
 
 
+def _slider(w, value: float, lo: float, hi: float, step: float, digits: int, description: str):
+    """A labelled FloatSlider that updates on release, in the explorers' common layout."""
+    return w.FloatSlider(
+        value=value,
+        min=lo,
+        max=hi,
+        step=step,
+        readout_format=f".{digits}f",
+        description=description,
+        continuous_update=False,
+        style=_LABEL_STYLE,
+        layout=w.Layout(width=_WIDE),
+    )
+
+
 class _ViewCache:
     """A small LRU of rendered views keyed by the options that produced them."""
 
@@ -148,16 +163,8 @@ def _classes():
             self.result = result
             self._cache = _ViewCache()
             self._cache.compute = self._render
-            self.level = w.FloatSlider(
-                value=result.level,
-                min=LEVEL_RANGE[0],
-                max=LEVEL_RANGE[1],
-                step=0.001,
-                readout_format=".3f",
-                description="confidence level",
-                continuous_update=False,
-                style=_LABEL_STYLE,
-                layout=w.Layout(width=_WIDE),
+            self.level = _slider(
+                w, result.level, LEVEL_RANGE[0], LEVEL_RANGE[1], 0.001, 3, "confidence level"
             )
             self.side = w.ToggleButtons(
                 options=SIDE_OPTIONS,
@@ -224,16 +231,8 @@ def _classes():
             trim = getattr(result, "trim", None)
             has_values = getattr(result, "samples", None) is not None
             if trim is not None and has_values and _probe(result, trim=float(trim)):
-                self.trim = w.FloatSlider(
-                    value=float(trim),
-                    min=TRIM_RANGE[0],
-                    max=TRIM_RANGE[1],
-                    step=0.01,
-                    readout_format=".2f",
-                    description="trim fraction",
-                    continuous_update=False,
-                    style=_LABEL_STYLE,
-                    layout=w.Layout(width=_WIDE),
+                self.trim = _slider(
+                    w, float(trim), TRIM_RANGE[0], TRIM_RANGE[1], 0.01, 2, "trim fraction"
                 )
                 controls.append(self.trim)
                 rows.append(self.trim)
@@ -383,17 +382,7 @@ def _classes():
                     lo, hi = min(-2.0, 1.25 * e), -0.01
                 else:
                     lo, hi = 0.01, max(2.0, 1.25 * e)
-                self.effect = w.FloatSlider(
-                    value=e,
-                    min=lo,
-                    max=hi,
-                    step=0.01,
-                    readout_format=".2f",
-                    description="effect (SD units)",
-                    continuous_update=False,
-                    style=_LABEL_STYLE,
-                    layout=w.Layout(width=_WIDE),
-                )
+                self.effect = _slider(w, e, lo, hi, 0.01, 2, "effect (SD units)")
                 controls.append(self.effect)
             self.n = None
             if p.solved != "n":
@@ -408,28 +397,18 @@ def _classes():
                 controls.append(self.n)
             self.power = None
             if p.solved != "power":
-                self.power = w.FloatSlider(
-                    value=float(p.target if p.target is not None else p.power),
-                    min=0.5,
-                    max=0.99,
-                    step=0.01,
-                    readout_format=".2f",
-                    description="power",
-                    continuous_update=False,
-                    style=_LABEL_STYLE,
-                    layout=w.Layout(width=_WIDE),
+                self.power = _slider(
+                    w,
+                    float(p.target if p.target is not None else p.power),
+                    0.5,
+                    0.99,
+                    0.01,
+                    2,
+                    "power",
                 )
                 controls.append(self.power)
-            self.level = w.FloatSlider(
-                value=p.level,
-                min=LEVEL_RANGE[0],
-                max=LEVEL_RANGE[1],
-                step=0.001,
-                readout_format=".3f",
-                description="confidence level",
-                continuous_update=False,
-                style=_LABEL_STYLE,
-                layout=w.Layout(width=_WIDE),
+            self.level = _slider(
+                w, p.level, LEVEL_RANGE[0], LEVEL_RANGE[1], 0.001, 3, "confidence level"
             )
             controls.append(self.level)
             self.ratio = None
