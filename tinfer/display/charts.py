@@ -623,7 +623,9 @@ def card_spec(chart_or_spec) -> dict[str, Any]:
     >>> spec["mark"]["color"] == INK, spec["config"]["range"]["category"][0] == CURVE
     (True, True)
     """
-    spec = _renamed(chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict())
+    spec = _renamed(
+        chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict(validate=False)
+    )
     extra = {
         # the card's chart element carries one description; per-mark ARIA labels would
         # repeat every point's values in the SVG and make it grow with the points drawn
@@ -648,7 +650,9 @@ def to_svg(chart_or_spec) -> str:
     the spec's JSON), so showing the same result again is instant; the cache never grows
     beyond that.
     """
-    spec = chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict()
+    spec = (
+        chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict(validate=False)
+    )
     return _svg(json.dumps(spec, sort_keys=True, allow_nan=False))
 
 
