@@ -256,6 +256,30 @@ class TestCompareOneSampleAndPaired:
 
 # ---------------------------------------------------------------- compare_summaries
 class TestCompareSummaries:
+    def test_group_of_one_with_missing_sd_is_untestable(self):
+        """A group of one has no SD (pandas std gives NaN): that segment is NaN, not an error."""
+        table = pd.DataFrame(
+            {
+                "seg": [1, 2, 3],
+                "n_a": [10, 1, 12],
+                "mean_a": [1.0, 2.0, 3.0],
+                "sd_a": [1.0, np.nan, 1.2],
+                "n_b": [10, 9, 12],
+                "mean_b": [0.5, 1.0, 2.0],
+                "sd_b": [1.0, 1.0, 1.0],
+            }
+        )
+        with pytest.warns(SmallSegmentWarning):
+            m = tinfer.compare_summaries(table, within="seg")
+        frame = m.to_frame().set_index("seg")
+        assert np.isnan(frame.loc[2, "p"])
+        # reference: scipy's Welch test from the same summaries (reference library)
+        ref = stats.ttest_ind_from_stats(3.0, 1.2, 12, 2.0, 1.0, 12, equal_var=False)
+        assert frame.loc[3, "p"] == pytest.approx(ref.pvalue, rel=1e-12)
+        table.loc[0, "sd_a"] = np.nan
+        with pytest.raises(tinfer.DataError, match="missing for a group of 2 or more"):
+            tinfer.compare_summaries(table, within="seg")
+
     def test_round_trip_of_to_frame(self):
         """The table from to_frame() gives the same tests back through compare_summaries."""
         df = orchard(seed=12)

@@ -924,10 +924,18 @@ def compare_summaries(
         n = _num(t, f"n{suffix}", func)[rows]
         mean = _num(t, f"mean{suffix}", func)[rows]
         if f"ssd{suffix}" in cols:
-            ssd = _num(t, f"ssd{suffix}", func)[rows]
+            ssd = _num(t, f"ssd{suffix}", func, single_ok=True)[rows]
         else:
-            sd = _num(t, f"sd{suffix}", func)[rows]
+            sd = _num(t, f"sd{suffix}", func, single_ok=True)[rows]
             ssd = sd * sd * (n - 1.0)
+        # A group of one has no SD (SQL and pandas give NULL/NaN): keep it, untestable.
+        blank = np.isnan(ssd)
+        if (blank & (n >= 2)).any():
+            raise DataError(
+                f"Column {'ssd' if f'ssd{suffix}' in cols else 'sd'}{suffix} of the summary "
+                "table is missing for a group of 2 or more; drop those rows first."
+            )
+        ssd = np.where(blank, 0.0, ssd)
         if (n < 0).any() or (ssd < 0).any():
             raise DataError(f"Column n{suffix} or sd{suffix} holds negative values.")
         lo = _num(t, f"mean_lo{suffix}", func)[rows] if f"mean_lo{suffix}" in cols else 0.0
@@ -993,9 +1001,11 @@ def compare_summaries(
     )
 
 
-def _num(t: pd.DataFrame, name: str, func: str) -> np.ndarray:
+def _num(t: pd.DataFrame, name: str, func: str, single_ok: bool = False) -> np.ndarray:
+    """A numeric column of the summary table; NaN allowed only where ``single_ok`` (SDs)."""
     x = _frames.to_float(_frames.column(t, name), f"Column {name!r}")
-    if not np.isfinite(x).all():
+    bad = np.isinf(x) if single_ok else ~np.isfinite(x)
+    if bad.any():
         raise DataError(
             f"Column {name!r} of the summary table holds missing or infinite values; "
             "drop those rows first."
