@@ -295,3 +295,17 @@ class TestProperties:
         fresh = df.tinfer.paired("pre", "post", level=level, side=side)
         assert again.to_dict() == fresh.to_dict()
         assert again.groups == fresh.groups
+
+
+class TestHypothesisWords:
+    def test_one_sided_null_is_the_complement(self):
+        """H0 of a one-sided test is the complement of H1 (common practice, no source)."""
+        df = pd.DataFrame({"v": [1.2, 0.8, 1.9, 1.4, 0.7]})
+        words = {
+            side: (r.null_hypothesis, r.alternative)
+            for side in ("two-sided", "upper", "lower")
+            for r in [df.tinfer.one_sample("v", null=1, side=side)]
+        }
+        assert words["two-sided"][0] == "the mean of v equals 1.00"
+        assert "is at most 1.00" in words["upper"][0] and "greater than" in words["upper"][1]
+        assert "is at least 1.00" in words["lower"][0] and "less than" in words["lower"][1]

@@ -195,8 +195,9 @@ class TResult:
     # ------------------------------------------------------------------ words
     @property
     def null_hypothesis(self) -> str:
-        """The null hypothesis in words."""
-        return f"the {self._subject()} equals {self._fmt(self.null)}"
+        """The null hypothesis in words (one-sided tests: the complement of the alternative)."""
+        verb = {"two-sided": "equals", "upper": "is at most", "lower": "is at least"}
+        return f"the {self._subject()} {verb[self.side]} {self._fmt(self.null)}"
 
     @property
     def alternative(self) -> str:
