@@ -37,3 +37,22 @@ def require_chromium() -> list:
 def launch(playwright):
     """Headless Chromium from the Debian package."""
     return playwright.chromium.launch(executable_path=CHROMIUM, args=CHROMIUM_ARGS)
+
+
+def open_offline(browser, path: Path, color_scheme: str = "light", width: int = 1100):
+    """A page showing ``path`` with every non-file request aborted; dialogs are recorded."""
+    page = browser.new_page(viewport={"width": width, "height": 900}, color_scheme=color_scheme)
+    page.dialogs = []
+
+    def on_dialog(dialog):
+        page.dialogs.append(dialog.message)
+        dialog.dismiss()
+
+    page.on("dialog", on_dialog)
+    page.route(
+        "**/*",
+        lambda route: route.continue_() if route.request.url.startswith("file:") else route.abort(),
+    )
+    page.goto(path.as_uri(), wait_until="load")
+    page.wait_for_timeout(300)
+    return page

@@ -8,25 +8,11 @@ import re
 import numpy as np
 import pandas as pd
 import pytest
+from references import nct_power
 from scipy import optimize, stats
 
 import tinfer
 from tinfer import ParameterError, PlanResult
-
-
-def nct_power(effect, n1, n2=None, level=0.95, side="two-sided"):
-    """Power from scipy.stats.nct (reference library), written out from the textbook formula."""
-    if n2 is None:
-        df, ncp = n1 - 1, effect * math.sqrt(n1)
-    else:
-        df, ncp = n1 + n2 - 2, effect * math.sqrt(n1 * n2 / (n1 + n2))
-    alpha = 1 - level
-    if side == "two-sided":
-        c = stats.t.ppf(1 - alpha / 2, df)
-        return stats.nct.sf(c, df, ncp) + np.nan_to_num(stats.nct.cdf(-c, df, ncp))
-    if side == "upper":
-        return stats.nct.sf(stats.t.ppf(1 - alpha, df), df, ncp)
-    return stats.nct.cdf(stats.t.ppf(alpha, df), df, ncp)
 
 
 # ----------------------------------------------------------------------------- plan: solving

@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
-from browser_support import OUTPUT, launch, require_chromium
+from browser_support import OUTPUT, launch, open_offline, require_chromium
 
 import tinfer
 from tinfer.display.render import html
@@ -88,21 +88,7 @@ def browser():
 
 
 def _open(browser, path: Path, color_scheme: str):
-    page = browser.new_page(viewport={"width": 1000, "height": 900}, color_scheme=color_scheme)
-    page.dialogs = []
-
-    def on_dialog(dialog):
-        page.dialogs.append(dialog.message)
-        dialog.dismiss()
-
-    page.on("dialog", on_dialog)
-    page.route(
-        "**/*",
-        lambda route: route.continue_() if route.request.url.startswith("file:") else route.abort(),
-    )
-    page.goto(path.as_uri(), wait_until="load")
-    page.wait_for_timeout(200)
-    return page
+    return open_offline(browser, path, color_scheme, width=1000)
 
 
 def _luminance(css_colour: str) -> float:

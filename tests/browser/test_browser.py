@@ -13,7 +13,7 @@ import re
 from pathlib import Path
 
 import pytest
-from browser_support import CHROMIUM, CHROMIUM_ARGS, OUTPUT, require_chromium
+from browser_support import CHROMIUM, CHROMIUM_ARGS, OUTPUT, open_offline, require_chromium
 
 SCRIPT = "<script>alert(1)</script>"
 
@@ -76,21 +76,7 @@ def browser():
 
 def _open(browser, path: Path, color_scheme: str = "light"):
     """A page showing ``path`` with every non-file request aborted; records dialogs."""
-    page = browser.new_page(viewport={"width": 1100, "height": 900}, color_scheme=color_scheme)
-    page.dialogs = []
-
-    def on_dialog(dialog):
-        page.dialogs.append(dialog.message)
-        dialog.dismiss()
-
-    page.on("dialog", on_dialog)
-    page.route(
-        "**/*",
-        lambda route: route.continue_() if route.request.url.startswith("file:") else route.abort(),
-    )
-    page.goto(path.as_uri(), wait_until="load")
-    page.wait_for_timeout(300)
-    return page
+    return open_offline(browser, path, color_scheme, width=1100)
 
 
 # ---------------------------------------------------------------------------- exported cards
