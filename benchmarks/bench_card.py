@@ -18,7 +18,7 @@ import time
 import pandas as pd
 
 import tinfer
-from tinfer.display import card, charts
+from tinfer.display import ttest
 
 KILN_A = [41.2, 38.7, 44.1, 40.3, 39.8, 42.6, 43.9, 37.5, 41.7, 40.9, 45.2]
 KILN_B = [36.4, 38.1, 35.2, 39.9, 37.3, 34.8, 38.6, 36.9, 35.7, 37.8, 39.1, 36.2]
@@ -62,8 +62,8 @@ def main(repeats: int = 30) -> int:
             ("card+SVG, new result", [x._repr_mimebundle_ for x in fresh]),
             ("card+SVG, same result again", [r._repr_mimebundle_] * repeats),
             ("card+SVG, new tdist view", [v._repr_mimebundle_ for v in views]),
-            ("card without chart", [lambda: card.result_card(r, chart=False)] * repeats),
-            ("chart spec only", [lambda: charts.result_spec(r)] * repeats),
+            ("card without chart", [lambda: ttest.result_card(r, chart=False)] * repeats),
+            ("chart spec only", [lambda: ttest.result_spec(r)] * repeats),
         )
     }
     load = os.getloadavg()[0] if hasattr(os, "getloadavg") else float("nan")

@@ -14,7 +14,7 @@ import statistics
 import time
 
 import tinfer
-from tinfer.display import card, charts, widgets
+from tinfer.display import charts, ttest, widgets
 
 TARGET_MS = 100.0
 REPEATS = 15
@@ -53,17 +53,17 @@ def main() -> None:
     rows.append(
         (
             "  part: card HTML without chart",
-            *_timed(lambda v: card.result_card(r.recompute(level=v), chart=False), levels),
+            *_timed(lambda v: ttest.result_card(r.recompute(level=v), chart=False), levels),
         )
     )
     rows.append(
         (
             "  part: chart spec (Vega-Lite dict)",
-            *_timed(lambda v: charts.result_spec(r.recompute(level=v)), levels),
+            *_timed(lambda v: ttest.result_spec(r.recompute(level=v)), levels),
         )
     )
     # vl-convert answers a repeated spec from a cache, so each SVG is timed on a new spec.
-    specs = {v: charts.result_spec(r.recompute(level=v - 2e-4)) for v in levels}
+    specs = {v: ttest.result_spec(r.recompute(level=v - 2e-4)) for v in levels}
     rows.append(("  part: SVG (vl-convert)", *_timed(lambda v: charts.to_svg(specs[v]), levels)))
 
     td = widgets.explore_tdist(tinfer.tdist(10))

@@ -1,21 +1,44 @@
 """tinfer: inference on means with the t distribution, for pandas DataFrames in notebooks.
 
 ``import tinfer`` registers the ``.tinfer`` accessor on DataFrame and Series.
+
+The package is built in layers, each importing only the ones below it::
+
+    frames/     the only code that reads pandas: the accessor, columns, level choice
+    analyses/   summaries + options -> results (t tests, equivalence, plans, batches, ...)
+    display/    cards, charts and widgets; reads results only
+    results/    frozen result types with their words
+    core/       numpy/scipy on summaries, vectorised
+    errors, checks, optional, docstrings   shared by every layer
 """
 
 from __future__ import annotations
 
-from . import _accessor  # noqa: F401  (registers the accessor)
-from ._compare import BatchResult, SmallSegmentWarning, compare_summaries
-from ._diagnostics import BootstrapCheck, Diagnostics
-from ._errors import DataError, MissingDependencyError, ParameterError, TinferError
-from ._offline import offline_charts
-from ._plan import PlanResult, plan
-from ._summary_api import from_summary
-from ._tdist import TDistribution, tdist
-from .results import Effect, Equivalence, GroupStats, OneSidedTest, TResult
-
-__version__ = "0.1.0"
+from . import frames  # noqa: F401  (registers the accessor)
+from .analyses import from_summary, plan
+from .display.offline import offline_charts
+from .errors import (
+    DataError,
+    MissingDependencyError,
+    ParameterError,
+    SmallSegmentWarning,
+    TinferError,
+)
+from .frames import compare_summaries
+from .results import (
+    BatchResult,
+    BootstrapCheck,
+    Diagnostics,
+    Effect,
+    Equivalence,
+    GroupStats,
+    OneSidedTest,
+    PlanResult,
+    TDistribution,
+    TResult,
+    tdist,
+)
+from .results.provenance import VERSION as __version__
 
 __all__ = [
     "BatchResult",

@@ -14,20 +14,15 @@ import sys
 import time
 from pathlib import Path
 
-from ._errors import MissingDependencyError
+from .optional import require
 
 
 def _imports():
-    try:
-        import nbclient
-        import nbformat
-        from nbconvert import HTMLExporter
-    except ImportError as exc:  # pragma: no cover - exercised only without the extras
-        raise MissingDependencyError(
-            "Making analysis records needs nbclient, nbformat and nbconvert: "
-            "pip install 'tinfer[dev]' (or those three packages)."
-        ) from exc
-    return nbclient, nbformat, HTMLExporter
+    """nbclient, nbformat and nbconvert's HTMLExporter (optional: the ``dev`` extra)."""
+    what = "making analysis records"
+    nbclient = require("nbclient", what)
+    nbformat = require("nbformat", what)
+    return nbclient, nbformat, require("nbconvert", what).HTMLExporter
 
 
 def execute(path: Path, timeout: int = 600):

@@ -19,7 +19,8 @@ from scipy import stats
 
 import tinfer
 from tinfer import MissingDependencyError
-from tinfer.display import card, charts
+from tinfer.display import charts, ttest
+from tinfer.display import tdist as tdist_display
 
 KILN_A = [41.2, 38.7, 44.1, 40.3, 39.8, 42.6, 43.9, 37.5, 41.7, 40.9, 45.2]
 KILN_B = [36.4, 38.1, 35.2, 39.9, 37.3, 34.8, 38.6, 36.9, 35.7, 37.8, 39.1, 36.2]
@@ -52,7 +53,7 @@ def _cell(page: str, label: str) -> str:
 @pytest.fixture(scope="module")
 def kilns():
     r = _frame().tinfer.two_sample("dry_min", by="kiln")
-    return r, card.result_card(r, chart=False)
+    return r, ttest.result_card(r, chart=False)
 
 
 # ---------------------------------------------------------------------------- result_card
@@ -119,7 +120,7 @@ def test_text_fallback_holds_str(kilns):
 def test_no_javascript_and_no_ids():
     """No script element, event handler, javascript: URL or id attribute, chart included."""
     r = _frame().tinfer.two_sample("dry_min", by="kiln")
-    page = card.result_card(r)
+    page = ttest.result_card(r)
     assert "<svg" in page
     low = page.lower()
     assert "<script" not in low and "javascript:" not in low
@@ -131,7 +132,7 @@ def test_user_strings_escaped():
     """A column named <x> and a group named like a script tag appear escaped, never raw."""
     df = _frame(value="<x>", a=SCRIPT)
     r = df.tinfer.two_sample("<x>", by="kiln")
-    page = card.result_card(r)  # chart included: its SVG must be safe too
+    page = ttest.result_card(r)  # chart included: its SVG must be safe too
     assert "<x>" not in page and "<script" not in page
     assert "&lt;x&gt;" in page
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in page
@@ -147,7 +148,7 @@ def test_units_and_labels_escaped():
         variable='say "hi"',
         units="<b>min</b>",
     )
-    page = card.result_card(r, chart=False)
+    page = ttest.result_card(r, chart=False)
     assert "<i>" not in page and "<b>" not in page
     assert "&lt;b&gt;min&lt;/b&gt;" in page and "south &amp; co" in page
     assert "say &quot;hi&quot;" in page
@@ -156,9 +157,9 @@ def test_units_and_labels_escaped():
 def test_missing_counts_in_footer():
     """Dropped missing values are counted per group in the notes."""
     r = _frame(missing_b=2).tinfer.two_sample("dry_min", by="kiln")
-    page = card.result_card(r, chart=False)
+    page = ttest.result_card(r, chart=False)
     assert "Missing values dropped before the test: south: 2." in page
-    clean = card.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"), chart=False)
+    clean = ttest.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"), chart=False)
     assert "No missing values were dropped." in clean
 
 
@@ -167,7 +168,7 @@ def test_underflowing_p_never_zero():
     r = tinfer.from_summary(n=1000, mean=100.0, sd=1.0, null=0.0)
     # reference: scipy's t.sf also underflows to exactly 0 here
     assert stats.t.sf(r.t, 999) == 0.0
-    page = card.result_card(r, chart=False)
+    page = ttest.result_card(r, chart=False)
     assert _cell(page, "p-value (two-sided)") == "below 1e-300"
 
 
@@ -176,7 +177,7 @@ def test_one_sided_interval_words():
     r = pd.DataFrame({"dry_min": KILN_A}).tinfer.one_sample("dry_min", null=40.0, side="upper")
     ref = stats.ttest_1samp(KILN_A, 40.0, alternative="greater")
     d = _decimals(np.std(KILN_A, ddof=1) / math.sqrt(11))
-    page = card.result_card(r, chart=False)
+    page = ttest.result_card(r, chart=False)
     assert _cell(page, "95% CI") == f"{ref.confidence_interval(0.95).low:.{d}f} or more (one-sided)"
     assert _cell(page, "p-value (upper)") == f"{ref.pvalue:#.3g}"
 
@@ -184,7 +185,7 @@ def test_one_sided_interval_words():
 def test_chart_embedded_as_svg():
     """With the display extras, the card carries one inline SVG inside .tinfer-chart."""
     pytest.importorskip("vl_convert")
-    page = card.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"))
+    page = ttest.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"))
     assert page.count("<svg") == 1
     assert re.search(r'<div class="tinfer-chart" role="img" aria-label="[^"]+"><svg', page)
 
@@ -196,7 +197,7 @@ def test_missing_chart_dependency_keeps_card(monkeypatch):
         raise MissingDependencyError("install vl-convert-python")
 
     monkeypatch.setattr(charts, "to_svg", missing)
-    page = card.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"))
+    page = ttest.result_card(_frame().tinfer.two_sample("dry_min", by="kiln"))
     assert "tinfer-missing-chart" in page and "install vl-convert-python" in page
     assert "<svg" not in page and "p-value" in page
 
@@ -204,7 +205,7 @@ def test_missing_chart_dependency_keeps_card(monkeypatch):
 # ---------------------------------------------------------------------------- tdist_card
 def test_tdist_card_area_and_percentiles():
     """Area and percentiles in the t-distribution card equal scipy's (reference: scipy)."""
-    page = card.tdist_card(tinfer.tdist(12).show(low=-1.0, high=2.0), chart=False)
+    page = tdist_display.tdist_card(tinfer.tdist(12).show(low=-1.0, high=2.0), chart=False)
     area = stats.t.cdf(2.0, 12) - stats.t.cdf(-1.0, 12)
     assert _cell(page, "area P(-1 < T < 2)") == f"{area:#.3g}"
     assert _cell(page, "2.5% percentile") == f"{stats.t.ppf(0.025, 12):.4f}"
@@ -223,7 +224,7 @@ def test_tdist_card_moments_with_conditions(df, mean, variance):
     """Mean and variance are stated with their df conditions."""
     if df == 5.0:
         assert stats.t.var(5.0) == pytest.approx(5 / 3)
-    page = card.tdist_card(tinfer.tdist(df).show(), chart=False)
+    page = tdist_display.tdist_card(tinfer.tdist(df).show(), chart=False)
     assert _cell(page, "mean").startswith(mean)
     assert _cell(page, "variance").startswith(variance)
     assert "df &gt; 1" in page and "df &gt; 2" in page
@@ -232,7 +233,7 @@ def test_tdist_card_moments_with_conditions(df, mean, variance):
 def test_tdist_card_fallback_and_no_area():
     """Without bounds there is no area row; the fallback holds str(view)."""
     view = tinfer.tdist(8).show()
-    page = card.tdist_card(view, chart=False)
+    page = tdist_display.tdist_card(view, chart=False)
     assert "area P(" not in page
     assert _fallback(page) == str(view)
 

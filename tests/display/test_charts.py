@@ -21,7 +21,8 @@ from scipy import stats
 
 import tinfer
 from tinfer import MissingDependencyError
-from tinfer.display import charts
+from tinfer.display import charts, density, ttest
+from tinfer.display import tdist as tdist_display
 
 alt = pytest.importorskip("altair")
 pytest.importorskip("vl_convert")
@@ -62,7 +63,7 @@ def _shaded_area(panel: dict) -> float:
 # ---------------------------------------------------------------------------- result_spec
 def test_result_spec_layers_two_sided():
     """Two-sided: one shaded layer per tail, the t curve, the normal curve, t and critical marks."""
-    top, bottom = charts.result_spec(_kilns())["vconcat"]
+    top, bottom = ttest.result_spec(_kilns())["vconcat"]
     names = [layer["description"] for layer in top["layer"]]
     assert names.count("shaded area") == 2
     for name in ("t density", "standard normal", "observed", "critical"):
@@ -78,7 +79,7 @@ def test_result_spec_one_tail_for_one_sided():
     """'upper' and 'lower' shade a single tail, on the matching side of the observed t."""
     for side in ("upper", "lower"):
         r = _honey(null=450.0, side=side)
-        top = charts.result_spec(r)["vconcat"][0]
+        top = ttest.result_spec(r)["vconcat"][0]
         (shade,) = _layers(top, "shaded area")
         lo, hi = shade["transform"][0]["filter"]["range"]
         t = stats.ttest_1samp(HONEY, 450.0, alternative="greater" if side == "upper" else "less")
@@ -90,14 +91,14 @@ def test_result_spec_one_tail_for_one_sided():
 
 def test_normal_reference_optional():
     """normal=False drops the dashed standard normal curve."""
-    top = charts.result_spec(_kilns(), normal=False)["vconcat"][0]
+    top = ttest.result_spec(_kilns(), normal=False)["vconcat"][0]
     assert not _layers(top, "standard normal")
 
 
 def test_shaded_area_integrates_to_p_two_sided():
     """Trapezoid over the shaded grid rows ≈ scipy's two-sided Welch p (reference: scipy)."""
     ref = stats.ttest_ind(KILN_A, KILN_B, equal_var=False)
-    top = charts.result_spec(_kilns())["vconcat"][0]
+    top = ttest.result_spec(_kilns())["vconcat"][0]
     L = top["layer"][0]["encoding"]["x"]["scale"]["domain"][1]
     df = float(
         (np.var(KILN_A, ddof=1) / 11 + np.var(KILN_B, ddof=1) / 12) ** 2
@@ -115,7 +116,7 @@ def test_shaded_area_integrates_to_p_one_sided():
     """One tail: trapezoid ≈ scipy's one-sided one-sample p (reference: scipy)."""
     r = _honey(null=450.5, side="upper")
     ref = stats.ttest_1samp(HONEY, 450.5, alternative="greater")
-    top = charts.result_spec(r)["vconcat"][0]
+    top = ttest.result_spec(r)["vconcat"][0]
     L = top["layer"][0]["encoding"]["x"]["scale"]["domain"][1]
     area = _shaded_area(top)
     assert area == pytest.approx(ref.pvalue, rel=2e-3, abs=stats.t.sf(L, 9) + 1e-6)
@@ -130,7 +131,7 @@ def test_shaded_area_integrates_to_p_one_sided():
 def test_shaded_area_matches_tail_over_grid(n, shift, side):
     """For any n, t and side, the shaded trapezoid equals scipy's tail mass inside the range."""
     r = tinfer.from_summary(n=n, mean=shift, sd=math.sqrt(n), null=0.0, side=side)
-    top = charts.result_spec(r)["vconcat"][0]
+    top = ttest.result_spec(r)["vconcat"][0]
     L = top["layer"][0]["encoding"]["x"]["scale"]["domain"][1]
     t, df = shift, n - 1  # se = sd / sqrt(n) = 1, so t equals the shift (exact by design)
     a = min(max(t, -L), L)
@@ -151,7 +152,7 @@ def test_shaded_area_matches_tail_over_grid(n, shift, side):
 def test_critical_values_match_scipy(side, level, q):
     """Critical marks carry scipy.stats.t.ppf at the result's df (reference: scipy)."""
     r = _honey(null=450.0, side=side, level=level)
-    top = charts.result_spec(r)["vconcat"][0]
+    top = ttest.result_spec(r)["vconcat"][0]
     (crit,) = _layers(top, "critical")
     values = sorted(m["value"] for m in crit["data"]["values"])
     assert values == pytest.approx(sorted(stats.t.ppf(q, len(HONEY) - 1)), rel=1e-10)
@@ -160,7 +161,7 @@ def test_critical_values_match_scipy(side, level, q):
 def test_observed_t_marked():
     """The observed-t mark holds scipy's t statistic and a label with it (reference: scipy)."""
     ref = stats.ttest_ind(KILN_A, KILN_B, equal_var=False)
-    top = charts.result_spec(_kilns())["vconcat"][0]
+    top = ttest.result_spec(_kilns())["vconcat"][0]
     (obs,) = _layers(top, "observed")
     (mark,) = obs["data"]["values"]
     assert mark["value"] == pytest.approx(ref.statistic, rel=1e-10)
@@ -169,8 +170,8 @@ def test_observed_t_marked():
 
 def test_fixed_grid_size():
     """The density has 401 grid points plus at most the two inserted tail starts."""
-    top = charts.result_spec(_kilns())["vconcat"][0]
-    assert charts.GRID_POINTS <= len(top["data"]["values"]) <= charts.GRID_POINTS + 2
+    top = ttest.result_spec(_kilns())["vconcat"][0]
+    assert density.GRID_POINTS <= len(top["data"]["values"]) <= density.GRID_POINTS + 2
 
 
 def test_spec_size_independent_of_n():
@@ -199,7 +200,7 @@ def test_no_raw_data_in_spec():
 def test_one_sided_interval_reaches_panel_edge():
     """An 'upper' interval is drawn from its bound to the panel edge and ends in a triangle."""
     r = _honey(null=450.0, side="upper")
-    bottom = charts.result_spec(r)["vconcat"][1]
+    bottom = ttest.result_spec(r)["vconcat"][1]
     (row,) = bottom["data"]["values"]
     domain = bottom["layer"][0]["encoding"]["x"]["scale"]["domain"]
     ref = stats.ttest_1samp(HONEY, 450.0, alternative="greater").confidence_interval(0.95)
@@ -212,7 +213,7 @@ def test_one_sided_interval_reaches_panel_edge():
 def test_underflowing_p_still_drawn():
     """A p below 1e-300 keeps both tail layers and marks t at the edge with an arrow."""
     r = tinfer.from_summary(n=1000, mean=100.0, sd=1.0, null=0.0)
-    top = charts.result_spec(r)["vconcat"][0]
+    top = ttest.result_spec(r)["vconcat"][0]
     assert len(_layers(top, "shaded area")) == 2
     (obs,) = _layers(top, "observed")
     (mark,) = obs["data"]["values"]
@@ -239,7 +240,7 @@ def test_tdist_area_integrates_to_scipy():
 
 def test_tdist_percentiles_match_scipy():
     """Percentile marks carry scipy.stats.t.ppf values (reference: scipy)."""
-    spec = charts.tdist_spec(tinfer.tdist(4.5), percentiles=(0.05, 0.5, 0.99))
+    spec = tdist_display.tdist_spec(tinfer.tdist(4.5), percentiles=(0.05, 0.5, 0.99))
     (marks,) = _layers(spec, "percentile")
     values = [m["value"] for m in marks["data"]["values"]]
     assert values == pytest.approx(stats.t.ppf([0.05, 0.5, 0.99], 4.5), rel=1e-10, abs=1e-12)
@@ -247,12 +248,12 @@ def test_tdist_percentiles_match_scipy():
 
 def test_tdist_upper_tail_and_normal():
     """low only: one shaded layer from low to the edge; the normal curve is there for df < ∞."""
-    spec = charts.tdist_spec(tinfer.tdist(3), low=1.5)
+    spec = tdist_display.tdist_spec(tinfer.tdist(3), low=1.5)
     (shade,) = _layers(spec, "shaded area")
     lo, hi = shade["transform"][0]["filter"]["range"]
     assert lo == 1.5 and hi == spec["layer"][0]["encoding"]["x"]["scale"]["domain"][1]
     assert _layers(spec, "standard normal")
-    assert not _layers(charts.tdist_spec(tinfer.tdist(float("inf"))), "standard normal")
+    assert not _layers(tdist_display.tdist_spec(tinfer.tdist(float("inf"))), "standard normal")
 
 
 def test_tdist_chart_returns_layer_chart():
@@ -271,7 +272,7 @@ def test_svg_renders_without_network(monkeypatch):
 
     monkeypatch.setattr(socket, "socket", refuse)
     monkeypatch.setattr(socket, "create_connection", refuse)
-    svg = charts.to_svg(charts.result_spec(_kilns()))
+    svg = charts.to_svg(ttest.result_spec(_kilns()))
     assert svg.startswith("<svg") and svg.rstrip().endswith("</svg>")
     low = svg.lower()
     assert "@font-face" not in low and "url(http" not in low and "@import" not in low
@@ -281,17 +282,17 @@ def test_svg_renders_without_network(monkeypatch):
 def test_svg_cache_is_bounded():
     """Rendered SVGs are kept in an LRU of fixed size; a repeat render returns the same text."""
     assert charts._svg.cache_info().maxsize == charts.SVG_CACHE_SIZE == 16
-    spec = charts.tdist_spec(tinfer.tdist(6), high=-1.0)
+    spec = tdist_display.tdist_spec(tinfer.tdist(6), high=-1.0)
     assert charts.to_svg(spec) is charts.to_svg(spec)
     for df in range(2, 2 + 2 * charts.SVG_CACHE_SIZE):
-        charts.to_svg(charts.tdist_spec(tinfer.tdist(df), percentiles=()))
+        charts.to_svg(tdist_display.tdist_spec(tinfer.tdist(df), percentiles=()))
     assert charts._svg.cache_info().currsize <= charts.SVG_CACHE_SIZE
 
 
 def test_svg_escapes_labels():
     """A group named like a script tag reaches the SVG as escaped text only."""
     df = pd.DataFrame({"v": KILN_A + KILN_B, "g": ["<script>a</script>"] * 11 + ["b"] * 12})
-    svg = charts.to_svg(charts.result_spec(df.tinfer.two_sample("v", by="g")))
+    svg = charts.to_svg(ttest.result_spec(df.tinfer.two_sample("v", by="g")))
     assert "<script" not in svg and "&lt;script&gt;" in svg
 
 
@@ -310,4 +311,4 @@ def test_missing_vl_convert_message(monkeypatch):
     monkeypatch.setitem(sys.modules, "vl_convert", None)
     charts._svg.cache_clear()
     with pytest.raises(MissingDependencyError, match="vl-convert-python"):
-        charts.to_svg(charts.tdist_spec(tinfer.tdist(3)))
+        charts.to_svg(tdist_display.tdist_spec(tinfer.tdist(3)))

@@ -13,7 +13,7 @@ from importlib.resources import files
 
 import pytest
 
-from tinfer.display.render import css, minify
+from tinfer.display.html import css, minify
 
 CSS = files("tinfer.display").joinpath("static", "tinfer.css").read_text(encoding="utf-8")
 

@@ -19,10 +19,9 @@ import pytest
 from scipy import stats
 
 import tinfer
-from tinfer import MissingDependencyError
-from tinfer._plan import PlanResult
-from tinfer.display import batch, charts, diagnostics, plan
-from tinfer.display.render import css
+from tinfer import MissingDependencyError, PlanResult
+from tinfer.display import batch, bootstrap, charts, diagnostics, plan
+from tinfer.display.html import css
 
 SCRIPT = "<script>alert(1)</script>"
 KILN_A = [41.2, 38.7, 44.1, 40.3, 39.8, 42.6, 43.9, 37.5, 41.7, 40.9, 45.2]
@@ -211,7 +210,7 @@ class TestBootstrapCard:
     def test_skeleton_escaping_and_numbers(self, kilns):
         """The bootstrap card escapes labels and shows scipy's t interval."""
         b = kilns.tinfer.one_sample(SCRIPT, null=40).bootstrap(999, seed=3)
-        page = diagnostics.bootstrap_card(b)
+        page = bootstrap.bootstrap_card(b)
         _skeleton(page, b)
         _escaped(page, SCRIPT)
         ci = stats.ttest_1samp(KILN_A + KILN_B, 40).confidence_interval(0.95)
@@ -224,7 +223,7 @@ class TestBootstrapCard:
         rng = np.random.default_rng(4)
         df = pd.DataFrame({"v": rng.lognormal(size=300_000), "g": ["a", "b"] * 150_000})
         b = df.tinfer.two_sample("v", by="g").bootstrap(199, seed=1)
-        page = diagnostics.bootstrap_card(b)
+        page = bootstrap.bootstrap_card(b)
         assert len(page.encode()) < MAX_BYTES
         _skeleton(page, b)
 
@@ -242,7 +241,7 @@ def test_missing_chart_extras_leave_a_note(monkeypatch, kilns):
         plan.plan_card(tinfer.plan("paired", effect=0.5, power=0.8)),
         batch.html_card(kilns.assign(seg="a").tinfer.compare(SCRIPT, by="kiln", within="seg")),
         diagnostics.diagnostics_card(r.check()),
-        diagnostics.bootstrap_card(r.bootstrap(199, seed=2)),
+        bootstrap.bootstrap_card(r.bootstrap(199, seed=2)),
     ]
     for page in pages:
         assert "<svg" not in page

@@ -12,7 +12,8 @@ import pandas as pd
 import pytest
 
 import tinfer
-from tinfer.display import card, render
+from tinfer.display import render
+from tinfer.display.html import css
 
 LOAVES = [803.1, 797.4, 801.8, 799.2, 805.6, 798.9, 802.2, 800.7, 796.5, 804.0]
 
@@ -35,7 +36,7 @@ def test_bundle_has_text_and_card(make):
     assert bundle["text/plain"] == str(obj)
     page = bundle["text/html"]
     assert page.startswith('<div class="tinfer-card"><style>')
-    assert page.count("<style>") == 1 and render.css() in page
+    assert page.count("<style>") == 1 and css() in page
     assert "<script" not in page.lower()
 
 
@@ -45,7 +46,7 @@ def test_bundle_falls_back_to_text(monkeypatch):
     def broken(result, chart=True):
         raise KeyError("boom")
 
-    monkeypatch.setattr(card, "result_card", broken)
+    monkeypatch.setattr(render, "card", broken)
     r = _result()
     with pytest.warns(RuntimeWarning, match="could not build the HTML card"):
         bundle = render.mimebundle(r)
@@ -84,7 +85,7 @@ def test_display_modules_load_on_demand():
     """import tinfer loads no display module; a card with its SVG needs vl-convert, not altair."""
     code = (
         "import sys, tinfer\n"
-        "mods = ('altair', 'vl_convert', 'tinfer.display.card')\n"
+        "mods = ('altair', 'vl_convert', 'tinfer.display.ttest')\n"
         "before = {m for m in mods if m in sys.modules}\n"
         "r = tinfer.from_summary(n=12, mean=5.4, sd=1.1, null=5.0)\n"
         "page = r._repr_mimebundle_()['text/html']\n"

@@ -202,6 +202,28 @@ def _names(shapes: Sequence[Shape]) -> str:
     return " and ".join(s.label for s in shapes)
 
 
+def _basis(shapes: Sequence[Shape], ratio: float) -> list[str]:
+    """The findings the advice rests on, one line per sample, then the rules used."""
+    basis = []
+    for s in shapes:
+        parts = [f"{s.label}: n = {s.n}"]
+        if np.isfinite(s.skewness):
+            parts.append(f"skewness {s.skewness:.2f}")
+        if np.isfinite(s.excess_kurtosis):
+            parts.append(f"excess kurtosis {s.excess_kurtosis:.2f}")
+        if s.test_name:
+            parts.append(f"{s.test_name.rsplit(' ', 1)[0]} p = {s.test_p:.3g}")
+        parts.append(f"{s.n_outliers} value(s) flagged by the Hampel rule")
+        basis.append(", ".join(parts))
+    if len(shapes) == 2:
+        basis.append(f"variance ratio (larger over smaller) {ratio:.2f}")
+    basis.append(
+        "rules of thumb: skewed if |skewness| > 1, heavy-tailed if excess kurtosis > 1, "
+        "each counted only when the normality test rejects at 5%"
+    )
+    return basis
+
+
 def advise(
     shapes: Sequence[Shape], *, design: str, trim: float = 0.0, pooled: bool = False
 ) -> tuple[str, tuple[str, ...]]:
@@ -215,24 +237,8 @@ def advise(
     (n < 50) to a bootstrap-t cross-check; skew alone in larger samples is reported with
     the bootstrap as an optional check; otherwise the ordinary t (Welch for two samples) fits.
     """
-    basis = []
-    for s in shapes:
-        parts = [f"{s.label}: n = {s.n}"]
-        if np.isfinite(s.skewness):
-            parts.append(f"skewness {s.skewness:.2f}")
-        if np.isfinite(s.excess_kurtosis):
-            parts.append(f"excess kurtosis {s.excess_kurtosis:.2f}")
-        if s.test_name:
-            parts.append(f"{s.test_name.rsplit(' ', 1)[0]} p = {s.test_p:.3g}")
-        parts.append(f"{s.n_outliers} value(s) flagged by the Hampel rule")
-        basis.append(", ".join(parts))
     ratio = variance_ratio(*shapes) if len(shapes) == 2 else float("nan")
-    if len(shapes) == 2:
-        basis.append(f"variance ratio (larger over smaller) {ratio:.2f}")
-    basis.append(
-        "rules of thumb: skewed if |skewness| > 1, heavy-tailed if excess kurtosis > 1, "
-        "each counted only when the normality test rejects at 5%"
-    )
+    basis = _basis(shapes, ratio)
     contaminated = [s for s in shapes if s.contaminated]
     skewed = [s for s in shapes if s.skewed and not s.contaminated]
     heavy = [s for s in shapes if s.heavy_tailed and not s.contaminated]

@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .._errors import ParameterError
+from ..errors import ParameterError
 
 METHODS = ("holm", "hochberg", "bh", "by", "none")
 ALIASES = {

@@ -46,7 +46,7 @@ def t_interval(estimate, se, df, level, side: str) -> tuple[np.ndarray, np.ndarr
     return estimate - half, estimate + half
 
 
-def _finish(
+def finish(
     estimate, se, df, null, level, side, t_eff, df_eff, scale, correction=1.0, effect_ci=True
 ):
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -93,7 +93,7 @@ def one_sample(
     shifted = (s.mean - null) + _lo(s)
     with np.errstate(divide="ignore", invalid="ignore"):
         t_eff = shifted / se
-    c = _finish(
+    c = finish(
         shifted, se, df, 0.0, level, side, t_eff, df, 1.0 / np.sqrt(s.n), effect_ci=effect_ci
     )
     return replace(
@@ -137,7 +137,7 @@ def two_sample(
             w = va / (va + vb)
             df = 1.0 / (w * w / (a.n - 1.0) + (1.0 - w) * (1.0 - w) / (b.n - 1.0))
     t_eff = (estimate - null) / (np.sqrt(sp2) * scale)
-    return _finish(
+    return finish(
         estimate,
         se,
         df,
@@ -150,3 +150,31 @@ def two_sample(
         hedges_j(df_pool),
         effect_ci=effect_ci,
     )
+
+
+def shifted(design: str, a, b, null, level, side: str, pooled: bool, effect_ci: bool):
+    """Run the procedure for ``design`` on many rows of double-double summaries.
+
+    ``a`` and ``b`` are ``(n, mean, mean_lo, ssd)`` tuples of arrays (``b`` is None for
+    one-sample and paired designs). The t procedures only see differences of means, so each
+    row is shifted by a constant first: by arm b's mean (two samples) or by ``null`` (one
+    sample). ``(mean_a - mean_b) + (lo_a - lo_b)`` then carries a difference of means near
+    1e9 to full precision. Returns the :class:`Computed` and the amount to add back to
+    estimates and interval limits.
+
+    Examples
+    --------
+    >>> one = (np.array([3.0]), np.array([1e9 + 2]), np.array([0.0]), np.array([2.0]))
+    >>> c, add = shifted("one-sample", one, None, 1e9, 0.95, "two-sided", False, False)
+    >>> float(c.estimate[0] + add) - 1e9, round(float(c.t[0]), 12)
+    (2.0, 3.464101615138)
+    """
+    n_a, hi_a, lo_a, ssd_a = a
+    opts = dict(level=level, side=side, effect_ci=effect_ci)
+    if design == "two-sample":
+        n_b, hi_b, lo_b, ssd_b = b
+        sa = Summary(n_a, (hi_a - hi_b) + (lo_a - lo_b), ssd_a)
+        sb = Summary(n_b, np.zeros_like(hi_b), ssd_b)
+        return two_sample(sa, sb, null=null, pooled=pooled, **opts), 0.0
+    sa = Summary(n_a, (hi_a - null) + lo_a, ssd_a)
+    return one_sample(sa, null=0.0, **opts), null

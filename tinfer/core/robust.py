@@ -25,7 +25,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import special
 
-from .procedures import Computed, _finish
+from .procedures import Computed, finish
 
 # floor(trim * n) with a guard against products such as 0.29 * 100 = 28.999999999999996
 _FLOOR_GUARD = 1e-9
@@ -156,7 +156,7 @@ def yuen_one_sample(s: Trimmed, null=0.0, level=0.95, side: str = "two-sided") -
     with np.errstate(divide="ignore", invalid="ignore"):
         t_eff = (s.mean - null) / se
         scale = winsor_normal_sd(s.trim) * se / s.wsd
-    return _finish(s.mean, se, df, null, level, side, t_eff, df, scale)
+    return finish(s.mean, se, df, null, level, side, t_eff, df, scale)
 
 
 def yuen_two_sample(
@@ -187,7 +187,7 @@ def yuen_two_sample(
         pooled = ((a.n - 1.0) * a.wvar + (b.n - 1.0) * b.wvar) / (a.n + b.n - 2.0)
         t_eff = (estimate - null) / se
         scale = winsor_normal_sd(a.trim) * se / np.sqrt(pooled)
-    return _finish(estimate, se, df, null, level, side, t_eff, df, scale)
+    return finish(estimate, se, df, null, level, side, t_eff, df, scale)
 
 
 # ---------------------------------------------------------------------- bootstrap-t

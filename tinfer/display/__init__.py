@@ -1,5 +1,8 @@
-"""Display layer: HTML cards, Altair charts and the Jupyter display protocol.
+"""Display layer: HTML cards, Altair charts, widgets and the Jupyter display protocol.
 
-Nothing here runs at ``import tinfer``; result objects import these modules when they are
-first displayed. altair and vl-convert are imported only inside the chart functions.
+Reads result objects only (and the numbers of :mod:`tinfer.core`); never imports
+:mod:`tinfer.frames` or :mod:`tinfer.analyses`. One module per kind of result, each
+registering its card with :func:`tinfer.display.render.card`. Nothing here runs at
+``import tinfer`` but :mod:`tinfer.display.offline`; altair, vl-convert and ipywidgets are
+imported only when a chart or a widget is first asked for.
 """

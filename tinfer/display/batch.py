@@ -1,133 +1,33 @@
-"""Text and HTML cards and Altair charts for :class:`~tinfer._compare.BatchResult`.
+"""The card, forest plot and p-value histogram of a :class:`~tinfer.BatchResult`.
 
-Small functions that return strings (or chart objects). Every user string (column names,
-segment values, arm labels) goes through ``html.escape``; CSS classes start with
-``tinfer-``; no JavaScript. The forest plot holds at most ``top`` rows and the p-value
-histogram only bin counts, so chart size does not grow with the number of segments.
+Small functions that return strings (or chart objects); every word comes from
+:mod:`tinfer.results.batch`. Every user string (column names, segment values, arm labels)
+goes through ``html.escape``; CSS classes start with ``tinfer-``; no JavaScript. The forest
+plot holds at most ``top`` rows and the p-value histogram only bin counts, so chart size
+does not grow with the number of segments.
 """
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 import numpy as np
 
-from .._errors import MissingDependencyError, ParameterError
-from .._format import fmt_df, fmt_level, fmt_num, fmt_p
+from ..errors import ParameterError
+from ..results.batch import HEADERS, BatchResult
+from ..results.format import fmt_level, fmt_num, fmt_p
+from .charts import altair
+from .html import altair_block, card_start, data_table, esc, notes, provenance, version_item, wrap
+from .render import card
 
-if TYPE_CHECKING:  # pragma: no cover
-    from .._compare import BatchResult
-
-TOP_ROWS = 5
 CARD_FOREST_ROWS = 15  # rows per metric panel in the card's forest plot
 HIT = "#b0413e"  # discoveries (the card's stylesheet gives it the theme's accent red)
 PLAIN = "#6b7682"  # the rest (restyled to the theme's muted ink)
 RULE = "#8a96a3"
 
 
-def _altair():
-    try:
-        import altair as alt
-    except ImportError as exc:  # pragma: no cover - exercised only without altair
-        raise MissingDependencyError(
-            "Charts need the 'altair' package, which is not installed. "
-            "Install it with: pip install 'tinfer[display]'"
-        ) from exc
-    return alt
-
-
-def _order(r: BatchResult) -> np.ndarray:
-    from .._compare import _order_by_p
-
-    return _order_by_p(r)
-
-
-def headline(r: BatchResult) -> str:
-    """One sentence: how many comparisons, how many discoveries, at which rate and method.
-
-    Examples
-    --------
-    >>> import pandas as pd, tinfer
-    >>> t = pd.DataFrame({"n_a": [12, 20], "mean_a": [5.1, 7.4], "sd_a": [1.2, 2.0],
-    ...                   "n_b": [15, 18], "mean_b": [4.3, 7.1], "sd_b": [1.5, 1.9]})
-    >>> headline(tinfer.compare_summaries(t))
-    '2 comparisons tested; 0 discoveries at rate 0.05 (Holm step-down (family-wise error rate)).'
-    """
-    tests = r.n_tests
-    disc = r.n_discoveries
-    word = "comparison" if tests == 1 else "comparisons"
-    dword = "discovery" if disc == 1 else "discoveries"
-    return f"{tests:,} {word} tested; {disc:,} {dword} at rate {r.rate:g} ({r.adjust_name})."
-
-
-def subject(r: BatchResult) -> str:
-    """What each row compares, in words."""
-    if r.design == "two-sample":
-        return f"{r.method}: {r.comparison}"
-    if r.design == "paired":
-        return f"{r.method}: paired differences"
-    return f"{r.method}: mean against {fmt_num(r.null)}"
-
-
-def top_rows(r: BatchResult, k: int = TOP_ROWS) -> list[dict[str, str]]:
-    """The ``k`` smallest-p rows as formatted strings (unescaped)."""
-    seg = r.segment_labels()
-    rows = []
-    for i in _order(r)[:k]:
-        rows.append(
-            {
-                "segment": seg[i],
-                "metric": r.metrics[r.row_metric[i]],
-                "estimate": fmt_num(float(r.estimate[i])),
-                "ci": f"{fmt_num(float(r.ci_low[i]))} to {fmt_num(float(r.ci_high[i]))}",
-                "t": f"{r.t[i]:.2f}",
-                "df": fmt_df(float(r.df[i])),
-                "p": fmt_p(float(r.p[i])),
-                "p_adj": fmt_p(float(r.p_adjusted[i])),
-                "hit": "yes" if r.discovery[i] else "no",
-            }
-        )
-    return rows
-
-
-HEADERS = (
-    ("segment", "segment"),
-    ("metric", "metric"),
-    ("estimate", "estimate"),
-    ("ci", "interval"),
-    ("t", "t"),
-    ("df", "df"),
-    ("p", "p"),
-    ("p_adj", "adjusted p"),
-    ("hit", "discovery"),
-)
-
-
-def text_card(r: BatchResult) -> str:
-    """Plain-text card: subject, headline, the top rows and the notes."""
-    lines = [subject(r), headline(r)]
-    rows = top_rows(r)
-    if rows:
-        lines.append(f"Smallest p-values ({fmt_level(r.level)} intervals):")
-        widths = {k: max(len(h), *(len(row[k]) for row in rows)) for k, h in HEADERS}
-        lines.append("  " + "  ".join(h.ljust(widths[k]) for k, h in HEADERS))
-        for row in rows:
-            lines.append("  " + "  ".join(row[k].ljust(widths[k]) for k, _ in HEADERS))
-    lines.extend(f"note: {w}" for w in r.warnings)
-    return "\n".join(lines)
-
-
-def card_rows(rows: list[dict[str, str]]) -> list[list[str]]:
-    """The top rows as table cells (segment first), unescaped."""
-    return [[row[k] for k, _ in HEADERS] for row in rows]
-
-
-def provenance(r: BatchResult) -> list[tuple[str, str]]:
+def provenance_items(r: BatchResult) -> list[tuple[str, str]]:
     """tinfer's version and the settings of the batch (values escaped)."""
-    from .card import _version, esc
-
     return [
-        ("tinfer", esc(_version())),
+        version_item(),
         ("comparisons", esc(f"{r.n_tests:,}")),
         ("level", esc(fmt_level(r.level))),
         ("side", esc(r.side)),
@@ -138,6 +38,7 @@ def provenance(r: BatchResult) -> list[tuple[str, str]]:
     ]
 
 
+@card.register
 def html_card(r: BatchResult, chart: bool = True) -> str:
     """The HTML card: the shared skeleton, the smallest p-values and the forest plot.
 
@@ -153,20 +54,18 @@ def html_card(r: BatchResult, chart: bool = True) -> str:
     >>> page.startswith('<div class="tinfer-card">') and "2 comparisons tested" in page
     True
     """
-    from . import card
-
-    rows = top_rows(r)
+    rows = r.top_rows()
     table = ""
     if rows:
-        table = card.data_table(
+        table = data_table(
             [h for _, h in HEADERS],
-            card_rows(rows),
+            [[row[k] for k, _ in HEADERS] for row in rows],
             ["tinfer-hit" if row["hit"] == "yes" else "" for row in rows],
             caption=f"Smallest p-values ({fmt_level(r.level)} intervals)",
         )
     chart_html = ""
     if chart and r.n_tests:
-        chart_html = card.altair_block(
+        chart_html = altair_block(
             lambda: forest_chart(r, top=CARD_FOREST_ROWS),
             f"Forest plot of the {CARD_FOREST_ROWS} smallest p-values per metric",
             wide=True,
@@ -174,14 +73,15 @@ def html_card(r: BatchResult, chart: bool = True) -> str:
     dcount = r.n_discoveries
     chip = f"{dcount:,} {'discovery' if dcount == 1 else 'discoveries'}"
     inner = (
-        card.head(subject(r), chip, "tinfer-chip-out" if dcount else "tinfer-chip-in")
-        + card.headline_p(headline(r))
+        card_start(
+            r.subject(), r.headline(), chip, "tinfer-chip-out" if dcount else "tinfer-chip-in"
+        )
         + table
         + chart_html
-        + card.notes(list(r.warnings))
-        + card.provenance(provenance(r))
+        + notes(list(r.warnings))
+        + provenance(provenance_items(r))
     )
-    return card.wrap(text_card(r), inner)
+    return wrap(str(r), inner)
 
 
 # --------------------------------------------------------------------------- charts
@@ -195,7 +95,7 @@ def forest_rows(
     """
     if isinstance(top, bool) or not isinstance(top, int) or top < 1:
         raise ParameterError(f"The 'top' parameter of chart must be a positive int. Got {top!r}.")
-    order = _order(r)
+    order = r.order_by_p()
     if metric is not None:
         if metric not in r.metrics:
             raise ParameterError(
@@ -251,7 +151,7 @@ def forest_chart(r: BatchResult, top: int = 30, page: int | None = None):
 
     Several metrics give one panel each, stacked, each on its own scale.
     """
-    alt = _altair()
+    alt = altair()
     if len(r.metrics) == 1:
         return _forest_panel(alt, r, top, page, None)
     panels = [_forest_panel(alt, r, top, page, m) for m in r.metrics]
@@ -303,7 +203,7 @@ def _forest_panel(alt, r: BatchResult, top: int, page: int | None, metric: str |
 
 def p_histogram(r: BatchResult, bins: int = 20):
     """Histogram of raw p-values on [0, 1]; counts come from numpy, not from the rows."""
-    alt = _altair()
+    alt = altair()
     if isinstance(bins, bool) or not isinstance(bins, int) or not 2 <= bins <= 200:
         raise ParameterError(
             f"The 'bins' parameter of p_histogram must be an int from 2 to 200. Got {bins!r}."

@@ -1,4 +1,4 @@
-"""Cards and charts for assumption checks and for the bootstrap cross-check.
+"""The card and charts of assumption checks (:class:`~tinfer.Diagnostics`).
 
 Cards use the shared skeleton of :mod:`tinfer.display.card` (packaged stylesheet, a
 plain-text fallback shown where styles are stripped, charts as inline SVG); every user
@@ -11,19 +11,23 @@ bootstrap histogram is binned in numpy, so a chart's size does not grow with n.
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
 import numpy as np
 
-from .._errors import MissingDependencyError
-from .._format import fmt_level, fmt_num
-from ..core import distribution as dist
 from ..core.diagnostics import HAMPEL_K, MAX_LISTED
-from . import card
-from .card import esc
-
-if TYPE_CHECKING:  # pragma: no cover
-    from .._diagnostics import BootstrapCheck, Diagnostics
+from ..results.diagnostics import MAX_POINTS, Diagnostics
+from ..results.format import fmt_num
+from .charts import altair
+from .html import (
+    altair_block,
+    card_start,
+    data_table,
+    esc,
+    provenance,
+    section,
+    version_item,
+    wrap,
+)
+from .render import card
 
 # Chart colours from the card palette (tinfer/display/charts.py), so that the stylesheet
 # restyles points, flags, medians and whiskers for dark themes.
@@ -65,8 +69,9 @@ def shape_rows(d: Diagnostics) -> tuple[list[str], list[list[str]]]:
     return header, rows
 
 
+@card.register
 def diagnostics_card(d: Diagnostics, chart: bool = True) -> str:
-    """HTML card for :class:`~tinfer._diagnostics.Diagnostics`: advice, shapes, Q-Q and box.
+    """HTML card for :class:`~tinfer.Diagnostics`: advice, shapes, Q-Q and box plots.
 
     Examples
     --------
@@ -86,7 +91,7 @@ def diagnostics_card(d: Diagnostics, chart: bool = True) -> str:
         f"<ul>{basis}</ul></details>"
     )
     chart_html = (
-        card.altair_block(
+        altair_block(
             lambda: diagnostics_chart(d),
             f"Normal Q-Q plot and box plot of {d.variable}",
             wide=True,
@@ -95,105 +100,25 @@ def diagnostics_card(d: Diagnostics, chart: bool = True) -> str:
         else ""
     )
     prov = [
-        ("tinfer", esc(card._version())),
+        version_item(),
         ("variable", esc(d.variable)),
         ("design", esc(d.design)),
         ("values", esc(", ".join(f"{s.n:,}" for s in d.shapes))),
     ]
     inner = (
-        card.head(f"Assumption checks · {d.method}")
-        + card.headline_p(d.advice)
+        card_start(f"Assumption checks · {d.method}", d.advice)
         + f'<p class="tinfer-foot">{esc(d.comparison)}, variable {esc(d.variable)}</p>'
-        + card.section("shape per sample")
-        + card.data_table(header, rows)
+        + section("shape per sample")
+        + data_table(header, rows)
         + foot
         + chart_html
-        + card.provenance(prov)
+        + provenance(prov)
     )
-    return card.wrap(str(d), inner)
-
-
-def bootstrap_card(b: BootstrapCheck, chart: bool = True) -> str:
-    """HTML card for :class:`~tinfer._diagnostics.BootstrapCheck`: both intervals and t*.
-
-    Examples
-    --------
-    >>> import pandas as pd, tinfer
-    >>> df = pd.DataFrame({"s": [3.1, 2.4, 5.8, 3.3, 2.9, 4.4, 3.0, 7.9, 3.6, 2.2]})
-    >>> b = df.tinfer.one_sample("s").bootstrap(n_resamples=999, seed=2)
-    >>> "bootstrap-t" in bootstrap_card(b, chart=False)
-    True
-    """
-    dec = b.decimals
-    lv = fmt_level(b.level)
-    rows = [
-        ["bootstrap-t", *(fmt_num(v, dec) for v in b.interval)],
-        [f"t (df = {b.df:.4g})", *(fmt_num(v, dec) for v in b.t_interval)],
-    ]
-    unit = f" {b.units}" if b.units else ""
-    figures = card.figures_table(
-        [
-            ("Estimate", card.num(fmt_num(b.estimate, dec) + unit, strong=True)),
-            (
-                "t* quantiles",
-                card.num(f"{b.t_star_quantiles[0]:.3f} and {b.t_star_quantiles[1]:.3f}")
-                + card.aside("(in place of the t critical values)"),
-            ),
-            ("Resamples", card.num(f"{b.n_resamples:,}") + card.aside(f"(seed {b.seed})")),
-        ]
-    )
-    notes = (
-        [f"{b.n_degenerate} resample(s) had no spread (t* infinite or undefined)."]
-        if b.n_degenerate
-        else []
-    )
-    chart_html = (
-        card.altair_block(
-            lambda: bootstrap_chart(b).properties(width=330),
-            "Histogram of the bootstrap t* over the t density",
-        )
-        if chart
-        else ""
-    )
-    numbers = (
-        figures
-        + card.section(f"{lv} intervals")
-        + card.data_table(["interval", "low", "high"], rows)
-    )
-    prov = [
-        ("tinfer", esc(card._version())),
-        ("level", esc(lv)),
-        ("side", esc(b.side)),
-        ("resamples", esc(f"{b.n_resamples:,}")),
-        ("seed", esc(b.seed)),
-    ]
-    inner = (
-        card.head(f"Bootstrap-t cross-check · {b.statistic}")
-        + card.headline_p(b.verdict)
-        + f'<p class="tinfer-foot">{esc(b.comparison)}</p>'
-        + f'<div class="tinfer-cols"><div class="tinfer-numbers">{numbers}</div>'
-        + f"{chart_html}</div>"
-        + card.notes(notes)
-        + card.provenance(prov)
-    )
-    return card.wrap(str(b), inner)
+    return wrap(str(d), inner)
 
 
 # ---------------------------------------------------------------------- charts
-
-
-def _altair():
-    try:
-        import altair as alt
-    except ImportError as exc:  # pragma: no cover - exercised only without altair
-        raise MissingDependencyError(
-            "Charts need the 'altair' package, which is not installed. "
-            "Install it with: pip install 'tinfer[display]'"
-        ) from exc
-    return alt
-
-
-def _r(x) -> list[float]:
+def rounded(x) -> list[float]:
     """Values rounded to 6 significant digits (keeps chart specs small)."""
     return [float(f"{v:.6g}") for v in np.asarray(x, dtype=float)]
 
@@ -208,14 +133,12 @@ def _thin_note(d: Diagnostics, what: str) -> list[str]:
     big = [s for s, t in zip(d.shapes, d.thinned, strict=True) if t]
     if not big:
         return []
-    from .._diagnostics import MAX_POINTS
-
     return [f"{what} (n above {MAX_POINTS} in " + ", ".join(s.label for s in big) + ")"]
 
 
 def qq_chart(d: Diagnostics):
     """Normal Q-Q plot, one panel per sample, with the line through the quartiles."""
-    alt = _altair()
+    alt = altair()
     import pandas as pd
 
     pts, ends = [], []
@@ -225,8 +148,8 @@ def qq_chart(d: Diagnostics):
             pd.DataFrame(
                 {
                     "sample": s.label,
-                    "normal quantile": _r(z),
-                    "value": _r(x),
+                    "normal quantile": rounded(z),
+                    "value": rounded(x),
                     "flag": np.where(far, "outlier", "value"),
                 }
             )
@@ -236,8 +159,8 @@ def qq_chart(d: Diagnostics):
             pd.DataFrame(
                 {
                     "sample": s.label,
-                    "normal quantile": _r(z_ends),
-                    "value": _r(icpt + slope * z_ends),
+                    "normal quantile": rounded(z_ends),
+                    "value": rounded(icpt + slope * z_ends),
                 }
             )
         )
@@ -273,7 +196,7 @@ def qq_chart(d: Diagnostics):
 
 def box_chart(d: Diagnostics):
     """Box plot per sample (Tukey whiskers), with the values or, for large n, the flagged ones."""
-    alt = _altair()
+    alt = altair()
     import pandas as pd
 
     boxes = pd.DataFrame(
@@ -291,7 +214,7 @@ def box_chart(d: Diagnostics):
     )
     rows = []
     for s, x, flags in zip(d.shapes, d.strip, d.strip_flags, strict=True):
-        for v, f in zip(_r(x), flags, strict=True):
+        for v, f in zip(rounded(x), flags, strict=True):
             rows.append({"sample": s.label, "value": v, "flag": "outlier" if f else "value"})
     pts = pd.DataFrame(rows, columns=["sample", "value", "flag"])
     y = alt.Y("sample:N", title=None)
@@ -335,81 +258,5 @@ def diagnostics_chart(d: Diagnostics):
     >>> len(spec) < 100_000
     True
     """
-    alt = _altair()
+    alt = altair()
     return alt.vconcat(qq_chart(d), box_chart(d))
-
-
-def bootstrap_chart(b: BootstrapCheck):
-    """Histogram of the bootstrap t* (binned in numpy) over the t density at the result's df.
-
-    Examples
-    --------
-    >>> import pandas as pd, tinfer
-    >>> df = pd.DataFrame({"s": [3.1, 2.4, 5.8, 3.3, 2.9, 4.4, 3.0, 7.9, 3.6, 2.2]})
-    >>> ch = df.tinfer.one_sample("s").bootstrap(n_resamples=999, seed=2).chart()
-    >>> type(ch).__name__
-    'LayerChart'
-    """
-    alt = _altair()
-    import pandas as pd
-
-    edges, counts = np.asarray(b.hist_edges), np.asarray(b.hist_counts)
-    width = edges[1] - edges[0]
-    total = counts.sum() + b.n_outside
-    bars = pd.DataFrame(
-        {
-            "lo": _r(edges[:-1]),
-            "hi": _r(edges[1:]),
-            "density": _r(counts / (total * width)),
-            "zero": 0.0,
-        }
-    )
-    grid = np.linspace(edges[0], edges[-1], 161)
-    curve = pd.DataFrame({"t": _r(grid), "density": _r(dist.pdf(grid, b.df))})
-    alpha = 1 - b.level
-    crit = (
-        [
-            -float(dist.critical(b.df, b.level, "two-sided")),
-            float(dist.critical(b.df, b.level, "two-sided")),
-        ]
-        if b.side == "two-sided"
-        else [float(dist.ppf(alpha, b.df)), float(dist.ppf(1 - alpha, b.df))]
-    )
-    marks = pd.DataFrame(
-        {
-            "t": _r([*b.t_star_quantiles, *crit]),
-            "kind": ["bootstrap t* quantile"] * 2 + ["t critical value"] * 2,
-        }
-    )
-    x = alt.X("lo:Q", title="studentised statistic t*")
-    hist = (
-        alt.Chart(bars)
-        .mark_rect(color=BOX, opacity=0.85)
-        .encode(x=x, x2="hi:Q", y=alt.Y("density:Q", title="density"), y2="zero:Q")
-    )
-    dens = alt.Chart(curve).mark_line(color=LINE).encode(x="t:Q", y="density:Q")
-    rules = (
-        alt.Chart(marks)
-        .mark_rule(strokeWidth=1.5)
-        .encode(
-            x="t:Q",
-            color=alt.Color(
-                "kind:N",
-                title=None,
-                scale=alt.Scale(
-                    domain=["bootstrap t* quantile", "t critical value"], range=[FLAG, LINE]
-                ),
-            ),
-            strokeDash=alt.StrokeDash("kind:N", legend=None),
-        )
-    )
-    sub = [f"{b.n_resamples} resamples (seed {b.seed}); curve: t density at df = {b.df:.4g}"]
-    if b.n_outside:
-        sub.append(f"{b.n_outside} extreme t* beyond the plotted range")
-    return alt.layer(hist, dens, rules).properties(
-        width=460,
-        height=200,
-        title=alt.TitleParams(
-            f"Bootstrap distribution of t* ({b.statistic})", subtitle=sub, anchor="start"
-        ),
-    )

@@ -1,90 +1,32 @@
-"""Display pieces for equivalence and non-inferiority claims (two one-sided tests).
+"""The card section and chart of an equivalence or non-inferiority claim (two one-sided tests).
 
-Small functions, each returning a string or chart layers, used by the card and by
-:func:`tinfer.display.charts.result_chart` when a result carries ``equivalence``:
+Small functions, each returning a string or chart layers, used by the t-test card and
+chart (:mod:`tinfer.display.ttest`) when a result carries ``equivalence``; every word comes
+from :mod:`tinfer.results.equivalence`:
 
 - :func:`card_section`: an HTML section listing the one-sided tests and the conclusion;
-- :func:`text_lines`: the same in plain text;
 - :func:`density_parts`: shaded tails and marks for the t-density panel (one tail at each
   one-sided test's t);
 - :func:`band_layers`: the shaded band and the ``1 - 2 alpha`` interval for the data-scale panel;
-- :func:`equivalence_chart`: both panels together.
+- :func:`equivalence_spec` and :func:`equivalence_chart`: both panels together.
 """
 
 from __future__ import annotations
 
 import html
 import math
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
-from .._format import fmt_df, fmt_level, fmt_num, fmt_p, p_equals
-
-if TYPE_CHECKING:  # pragma: no cover
-    from ..results import Equivalence, OneSidedTest, TResult
+from ..core import distribution as dist
+from ..results.equivalence import level_words
+from ..results.format import fmt_df, fmt_num, fmt_p, p_equals
+from ..results.ttest import TResult
+from .charts import INK, STRIP_HEIGHT, WIDTH, config, to_altair
+from .density import clamp, density_panel, density_rows, half_width, mark, mark_label
 
 BAND = "#6a9f58"  # edge of the shaded band on the data scale (our own choice)
 BAND_FILL = "#dcebd5"
 TOST_CI = "#1f5f8b"
-
-KIND_TITLES = {
-    "equivalence": "Equivalence by two one-sided tests",
-    "non-inferiority": "Non-inferiority by a one-sided test",
-    "superiority": "Superiority by a margin, one-sided test",
-}
-
-
-def _tests(eq: Equivalence) -> list[tuple[str, OneSidedTest]]:
-    out = []
-    if eq.lower is not None:
-        out.append(("lower", eq.lower))
-    if eq.upper is not None:
-        out.append(("upper", eq.upper))
-    return out
-
-
-def _p_text(test: OneSidedTest) -> str:
-    return fmt_p(test.p, test.log_p)
-
-
-def text_lines(result: TResult) -> list[str]:
-    """Plain-text lines for the equivalence part of a result ([] when there is none).
-
-    Examples
-    --------
-    >>> import tinfer
-    >>> r = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8, units="kg")
-    >>> print("\\n".join(text_lines(r)))
-    Equivalence by two one-sided tests: band -0.80 kg to 0.80 kg, each test at 0.05
-      H0 mean at or below -0.80 kg: t = 5.477, df = 29, p = 3.37e-06
-      H0 mean at or above 0.80 kg: t = -3.286, df = 29, p = 0.00133
-      90% CI -0.11 kg to 0.51 kg; shown: equivalent to 0 kg within ±0.8 kg (p = 0.00133)
-    """
-    eq = result.equivalence
-    if eq is None:
-        return []
-    lines = [f"{KIND_TITLES[eq.kind]}: band {_band_words(result)}, each test at {eq.alpha:.3g}"]
-    for _, test in _tests(eq):
-        lines.append(
-            f"  H0 {test.null_hypothesis}: t = {test.t:.3f}, df = {fmt_df(test.df)}, "
-            f"p = {_p_text(test)}"
-        )
-    from .._margin import interval_words
-
-    verdict = "shown" if eq.decision else "not shown"
-    lines.append(
-        f"  {interval_words(eq, result._fmt)}; {verdict}: {eq.conclusion} "
-        f"({p_equals(eq.p, eq.log_p)})"
-    )
-    if eq.note:
-        lines.append(f"  {eq.note}")
-    return lines
-
-
-def _band_words(result: TResult) -> str:
-    eq = result.equivalence
-    lo = result._fmt(eq.low) if math.isfinite(eq.low) else "−∞"
-    hi = result._fmt(eq.high) if math.isfinite(eq.high) else "∞"
-    return f"{lo} to {hi}"
 
 
 def card_section(result: TResult) -> str:
@@ -106,31 +48,29 @@ def card_section(result: TResult) -> str:
         return ""
     esc = html.escape
     rows = []
-    for name, test in _tests(eq):
+    for name, test in eq.tests:
         rows.append(
             "<tr>"
             f"<td>{esc(name)}</td>"
             f"<td>{esc(test.null_hypothesis)}</td>"
             f"<td>{test.t:.3f}</td>"
             f"<td>{esc(fmt_df(test.df))}</td>"
-            f"<td>{esc(_p_text(test))}</td>"
+            f"<td>{esc(fmt_p(test.p, test.log_p))}</td>"
             "</tr>"
         )
-    from .._margin import interval_words
-
     verdict_class = "tinfer-eq-yes" if eq.decision else "tinfer-eq-no"
     note = f'<p class="tinfer-eq-note">{esc(eq.note)}</p>' if eq.note else ""
     return (
         '<section class="tinfer-eq">'
-        f'<h4 class="tinfer-eq-title">{esc(KIND_TITLES[eq.kind])}</h4>'
-        f'<p class="tinfer-eq-band">Band: {esc(_band_words(result))}; '
+        f'<h4 class="tinfer-eq-title">{esc(eq.title)}</h4>'
+        f'<p class="tinfer-eq-band">Band: {esc(eq.band_words(result.fmt))}; '
         f"each one-sided test at {eq.alpha:.3g}.</p>"
         '<table class="tinfer-eq-tests">'
         "<thead><tr><th>limit</th><th>null hypothesis</th><th>t</th><th>df</th>"
         "<th>p</th></tr></thead>"
         f"<tbody>{''.join(rows)}</tbody></table>"
         f'<p class="tinfer-eq-verdict {verdict_class}">'
-        f"{esc(interval_words(eq, result._fmt))}: {esc(eq.conclusion)} "
+        f"{esc(eq.interval_words(result.fmt))}: {esc(eq.conclusion)} "
         f"({esc(p_equals(eq.p, eq.log_p))}).</p>"
         f"{note}</section>"
     )
@@ -139,8 +79,6 @@ def card_section(result: TResult) -> str:
 # ---------------------------------------------------------------------------- charts
 def density_values(result: TResult) -> list[float]:
     """The t values the density panel must cover: each one-sided test's t and critical value."""
-    from ..core import distribution as dist
-
     eq = result.equivalence
     crit = float(dist.isf(eq.alpha, result.df))
     vals = []
@@ -166,26 +104,20 @@ def density_parts(result: TResult, L: float) -> dict[str, Any]:
     >>> [(round(a, 3), round(b, 3)) for a, b in parts["shade"]]
     [(5.477, 6.0), (-6.0, -3.286)]
     """
-    from . import charts
-
     eq = result.equivalence
     shade, extra, marks = [], [], []
-    for row, (_, test) in enumerate(_tests(eq)):
-        a = charts._clamp(test.t, L)
+    for row, (_, test) in enumerate(eq.tests):
+        a = clamp(test.t, L)
         shade.append((a, L) if test is eq.lower else (-L, a))
         extra.append(a)
         word = "t lower" if test is eq.lower else "t upper"
-        marks.append(
-            charts._mark("observed", test.t, charts._mark_label(f"{word} =", test.t, L), L, row)
-        )
-    from ..core import distribution as dist
-
+        marks.append(mark("observed", test.t, mark_label(f"{word} =", test.t, L), L, row))
     crit = float(dist.isf(eq.alpha, result.df))
     for value, test in ((crit, eq.lower), (-crit, eq.upper)):
         if test is not None:
-            label = charts._mark_label("critical", value, L)
-            marks.append(charts._mark("critical", value, label, L, len(marks)))
-    ps = ", ".join(f"{name} {_p_text(t)}" for name, t in _tests(eq))
+            label = mark_label("critical", value, L)
+            marks.append(mark("critical", value, label, L, len(marks)))
+    ps = ", ".join(f"{name} {fmt_p(t.p, t.log_p)}" for name, t in eq.tests)
     subtitle = f"shaded: one tail per one-sided test (p: {ps})"
     return {"shade": shade, "extra": extra, "marks": marks, "subtitle": subtitle}
 
@@ -235,8 +167,6 @@ def band_layers(result: TResult, edges: tuple[float, float]) -> list[dict[str, A
 
 def band_panel(result: TResult) -> dict[str, Any]:
     """The data-scale panel: band, ``1 - 2 alpha`` interval and estimate (a Vega-Lite dict)."""
-    from . import charts
-
     eq = result.equivalence
     est = result.estimate
     finite = [v for v in (eq.low, eq.high, *eq.ci, est) if math.isfinite(v)]
@@ -257,20 +187,16 @@ def band_panel(result: TResult) -> dict[str, Any]:
         {
             "description": "estimate label",
             "data": {"values": [point]},
-            "mark": {"type": "text", "dy": -12, "fontSize": 10, "color": charts.INK},
+            "mark": {"type": "text", "dy": -12, "fontSize": 10, "color": INK},
             "encoding": {"x": x, "text": {"field": "label", "type": "nominal"}},
         },
     ]
     verdict = "inside" if eq.decision else "not inside"
-    if eq.lower is None or eq.upper is None:
-        which = "lower" if eq.upper is None else "upper"
-        what = f"one-sided {fmt_level(1.0 - eq.alpha)} {which} bound"
-    else:
-        what = f"{fmt_level(eq.ci_level)} CI"
+    what = level_words(eq)
     return {
         "description": "interval against the margin band",
-        "width": charts.WIDTH,
-        "height": charts.STRIP_HEIGHT,
+        "width": WIDTH,
+        "height": STRIP_HEIGHT,
         "title": {
             "text": f"{what} against the shaded band: {verdict}",
             "fontSize": 11,
@@ -289,13 +215,11 @@ def equivalence_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
     >>> [p["description"] for p in equivalence_spec(r)["vconcat"]]
     ['t density with one-sided tails', 'interval against the margin band']
     """
-    from . import charts
-
     eq = result.equivalence
     df = result.df
-    L = charts.half_width(density_values(result))
+    L = half_width(density_values(result))
     parts = density_parts(result, L)
-    rows = charts.density_rows(df, L, parts["extra"])
+    rows = density_rows(df, L, parts["extra"])
     sub = parts["subtitle"]
     if normal and not math.isinf(df):
         sub += "; dashed: standard normal"
@@ -303,9 +227,9 @@ def equivalence_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
         "text": f"t distribution, df = {fmt_df(df)}, each test at {eq.alpha:.3g}",
         "subtitle": sub,
     }
-    top = charts._density_panel(df, L, rows, parts["shade"], parts["marks"], normal, title)
+    top = density_panel(df, L, rows, parts["shade"], parts["marks"], normal, title)
     top["description"] = "t density with one-sided tails"
-    return {"config": charts.config(), "vconcat": [top, band_panel(result)], "spacing": 16}
+    return {"config": config(), "vconcat": [top, band_panel(result)], "spacing": 16}
 
 
 def equivalence_chart(result: TResult, normal: bool = True):
@@ -318,6 +242,4 @@ def equivalence_chart(result: TResult, normal: bool = True):
     >>> type(equivalence_chart(r)).__name__
     'VConcatChart'
     """
-    from . import charts
-
-    return charts._to_altair(equivalence_spec(result, normal))
+    return to_altair(equivalence_spec(result, normal))

@@ -35,172 +35,21 @@ from typing import Any
 
 import dask.dataframe as dd
 import numpy as np
-import pandas as pd
 from dask.dataframe.extensions import register_dataframe_accessor
 
-from .. import _compare
-from .._build import build, group_stats
-from .._errors import ParameterError
-from ..core.grouped import grouped_moments
-from ..core.summary import Summary, merge
-from ..results import TResult
-
-_METRIC = "__tinfer_metric__"
-_STATS = ("__n__", "__mean__", "__lo__", "__ssd__", "__missing__")
-_DROPPED = "__dropped__"
-
-# A metric spec: (name, columns, kind). kind "value" takes one column; "diff" takes
-# first minus second; "first"/"second" take one column of a pair where both are present.
-Spec = tuple[str, tuple, str]
-
-
-def _metric_values(pdf: pd.DataFrame, cols: tuple, kind: str) -> np.ndarray:
-    if kind == "value":
-        return _compare._values(pdf, cols)
-    x = _compare._values(pdf, cols[:1])
-    y = _compare._values(pdf, cols[1:])
-    if kind == "diff":
-        return x - y
-    both = ~(np.isnan(x) | np.isnan(y))
-    return np.where(both, x if kind == "first" else y, np.nan)
-
-
-def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.DataFrame:
-    """Summaries of one partition: key columns, metric index, n, mean, ssd, missing count.
-
-    Rows with a missing key are counted once, in the column ``__dropped__`` of the first
-    output row (one extra row carries the count when no group is present).
-    """
-    n_rows = len(pdf)
-    if keys:
-        parts = [_compare.key_codes(pdf[k]) for k in keys]
-        code, _ = _compare.combine_codes([p[0] for p in parts], [len(p[1]) for p in parts])
-        ok = code >= 0
-        present, g = np.unique(code[ok], return_inverse=True)
-        first_row = np.flatnonzero(ok)[np.unique(g, return_index=True)[1]]
-    else:
-        ok = np.ones(n_rows, dtype=bool)
-        g = np.zeros(n_rows, dtype=np.intp)
-        present = np.zeros(min(n_rows, 1), dtype=np.intp)
-        first_row = np.zeros(present.size, dtype=np.intp)
-    n_groups = present.size
-    dropped = int(n_rows - ok.sum())
-    frames = []
-    for j, (_, cols, kind) in enumerate(specs):
-        x = _metric_values(pdf, cols, kind)[ok]
-        fin = np.isfinite(x)
-        n, mean, lo, ssd = grouped_moments(x[fin], g[fin], n_groups)
-        miss = np.bincount(g[~fin], minlength=n_groups)
-        out = {k: pdf[k].iloc[first_row].to_numpy() for k in keys}
-        out[_METRIC] = np.full(n_groups, j, dtype=np.int64)
-        out["__n__"], out["__mean__"], out["__lo__"], out["__ssd__"] = n, mean, lo, ssd
-        out["__missing__"] = miss.astype(np.int64)
-        out[_DROPPED] = np.zeros(n_groups, dtype=np.int64)
-        if j == 0 and n_groups:  # once per partition: the client sums this column
-            out[_DROPPED][0] = dropped
-        frames.append(pd.DataFrame(out))
-    table = pd.concat(frames, ignore_index=True)
-    if dropped and n_groups == 0:
-        blank = pd.DataFrame({k: pd.Series([None], dtype=object) for k in keys})
-        blank[_METRIC] = -1
-        for c in _STATS:
-            blank[c] = 0.0 if c != "__missing__" else 0
-        blank[_DROPPED] = dropped
-        table = pd.concat([table, blank], ignore_index=True)
-    return table
-
-
-def _meta(ddf: dd.DataFrame, keys: list) -> pd.DataFrame:
-    meta = {k: ddf._meta[k].iloc[:0] for k in keys}
-    frame = pd.DataFrame({k: pd.Series(v.to_numpy(), dtype=v.dtype) for k, v in meta.items()})
-    frame[_METRIC] = pd.Series([], dtype=np.int64)
-    for c in ("__n__", "__mean__", "__lo__", "__ssd__"):
-        frame[c] = pd.Series([], dtype=np.float64)
-    frame["__missing__"] = pd.Series([], dtype=np.int64)
-    frame[_DROPPED] = pd.Series([], dtype=np.int64)
-    return frame
-
-
-def merged_summaries(ddf: dd.DataFrame, keys: list, specs: list[Spec]) -> tuple[pd.DataFrame, int]:
-    """Per-group summaries over the whole Dask DataFrame, merged pairwise.
-
-    Returns a pandas table with the key columns, the metric index, n, mean, ssd and the
-    missing count per group, and the number of rows dropped for a missing key.
-    """
-    for k in keys:
-        if k not in ddf.columns:
-            raise _compare._frames.missing_column(k, ddf.columns)
-    for _, cols, _ in specs:
-        for c in cols:
-            if c not in ddf.columns:
-                raise _compare._frames.missing_column(c, ddf.columns)
-    parts = ddf.map_partitions(partial_summaries, keys, specs, meta=_meta(ddf, keys))
-    table = parts.compute()
-    dropped = int(table[_DROPPED].sum())
-    table = table[table[_METRIC] >= 0].reset_index(drop=True)
-    if table.empty:
-        return table, dropped
-    # group id per partial row: (keys..., metric)
-    codes = [_compare.key_codes(table[k])[0] for k in keys]
-    codes.append(table[_METRIC].to_numpy(dtype=np.intp))
-    sizes = [int(c.max()) + 1 for c in codes]
-    combined, _ = _compare.combine_codes(codes, sizes)
-    uniq, gid, counts = np.unique(combined, return_inverse=True, return_counts=True)
-    order = np.argsort(gid, kind="stable")
-    width = int(counts.max())
-    slot = np.arange(order.size) - np.repeat(np.cumsum(counts) - counts, counts)
-    gs = gid[order]
-    p_n = table["__n__"].to_numpy()[order]
-    p_hi = np.where(p_n > 0, table["__mean__"].to_numpy()[order], 0.0)
-    p_lo = np.where(p_n > 0, table["__lo__"].to_numpy()[order], 0.0)
-    # Each group's means are taken relative to an anchor (its first non-empty partial
-    # mean), so that the merge works on small numbers: hi - anchor is exact for nearby
-    # values, and the low parts keep the digits that 1e9-sized means would lose.
-    has = p_n > 0
-    first_nonempty = np.full(uniq.size, -1, dtype=np.intp)
-    idx = np.flatnonzero(has)[::-1]
-    first_nonempty[gs[idx]] = idx
-    anchor = np.where(first_nonempty >= 0, p_hi[np.maximum(first_nonempty, 0)], 0.0)
-    shape = (uniq.size, width)
-    n = np.zeros(shape)
-    rel = np.zeros(shape)
-    ssd = np.zeros(shape)
-    n[gs, slot] = p_n
-    rel[gs, slot] = np.where(has, (p_hi - anchor[gs]) + p_lo, 0.0)
-    ssd[gs, slot] = table["__ssd__"].to_numpy()[order]
-    s = Summary(n, rel, ssd)
-    while s.n.shape[1] > 1:  # pairwise tree of Chan-Golub-LeVeque merges
-        if s.n.shape[1] % 2:
-            pad = np.zeros((uniq.size, 1))
-            s = Summary(*(np.hstack([v, pad]) for v in (s.n, s.mean, s.ssd)))
-        left = Summary(s.n[:, 0::2], s.mean[:, 0::2], s.ssd[:, 0::2])
-        right = Summary(s.n[:, 1::2], s.mean[:, 1::2], s.ssd[:, 1::2])
-        s = merge(left, right)
-    first = order[np.cumsum(counts) - counts]
-    out = table.iloc[first][[*keys, _METRIC]].reset_index(drop=True)
-    total = s.n[:, 0]
-    rel_mean = np.where(total > 0, s.mean[:, 0], 0.0)
-    hi = anchor + rel_mean
-    out["n"] = total
-    out["mean"] = np.where(total > 0, hi, 0.0)
-    out["mean_lo"] = np.where(total > 0, (anchor - hi) + rel_mean, 0.0)
-    out["ssd"] = s.ssd[:, 0]
-    missing = np.bincount(gid, weights=table["__missing__"].to_numpy(), minlength=uniq.size)
-    out["n_missing"] = missing.astype(np.int64)
-    return out, dropped
-
-
-def _one(table: pd.DataFrame, metric: int, mask=None) -> tuple[Summary, int]:
-    rows = table[table[_METRIC] == metric]
-    if mask is not None:
-        rows = rows[mask(rows)]
-    if rows.empty:
-        return Summary(np.asarray(0.0), np.asarray(np.nan), np.asarray(0.0)), 0
-    r = rows.iloc[0]
-    s = Summary(
-        np.asarray(r["n"]), np.asarray(r["mean"]), np.asarray(r["ssd"]), np.asarray(r["mean_lo"])
-    )
-    return s, int(r["n_missing"])
+from ..analyses import build, check_options, group_stats
+from ..core.summary import Summary
+from ..errors import ParameterError
+from ..frames import (
+    as_list,
+    check_result_names,
+    choose_two,
+    compare_summaries,
+    metric_specs,
+    py_value,
+)
+from ..results import BatchResult, TResult
+from .summaries import METRIC, merged_summaries, partial_summaries, summary_of
 
 
 @register_dataframe_accessor("tinfer")
@@ -230,7 +79,7 @@ class TinferDaskAccessor:
         (501.05, 2.737, 0.0409)
         """
         table, _ = merged_summaries(self._obj, [], [(str(column), (column,), "value")])
-        s, miss = _one(table, 0)
+        s, miss = summary_of(table, 0)
         return build(
             "one-sample",
             (s,),
@@ -262,7 +111,7 @@ class TinferDaskAccessor:
         """
         table, no_key = merged_summaries(self._obj, [by], [(str(column), (column,), "value")])
         levels = table[by].to_numpy(dtype=object)
-        first, second = _compare._choose_arms(levels, np.ones(len(levels), bool), by, groups)
+        first, second = choose_two(list(levels), by, groups, "two-sample comparison")
         sums, miss, labs = [], [], []
         for i in (first, second):
             row = table.iloc[i]
@@ -275,7 +124,7 @@ class TinferDaskAccessor:
                 )
             )
             miss.append(int(row["n_missing"]))
-            labs.append(str(_compare._py(levels[i])))
+            labs.append(str(py_value(levels[i])))
         return build(
             "two-sample",
             tuple(sums),
@@ -307,9 +156,9 @@ class TinferDaskAccessor:
         cols = (first, second)
         specs = [("diff", cols, "diff"), ("first", cols, "first"), ("second", cols, "second")]
         table, _ = merged_summaries(self._obj, [], specs)
-        d, dropped = _one(table, 0)
-        sa, _ = _one(table, 1)
-        sb, _ = _one(table, 2)
+        d, dropped = summary_of(table, 0)
+        sa, _ = summary_of(table, 1)
+        sb, _ = summary_of(table, 2)
         extra = (group_stats(str(first), sa), group_stats(str(second), sb))
         return build(
             "paired",
@@ -339,7 +188,7 @@ class TinferDaskAccessor:
         level: float = 0.95,
         side: str = "two-sided",
         pooled: bool = False,
-    ) -> _compare.BatchResult:
+    ) -> BatchResult:
         """Many tests at once; see ``DataFrame.tinfer.compare`` (same options, same result).
 
         Examples
@@ -355,33 +204,33 @@ class TinferDaskAccessor:
         ('new minus old', [4.0, 2.33])
         """
         func = "compare"
-        options = _compare.check_options(
+        options = check_options(
             func, adjust=adjust, rate=rate, level=level, side=side, null=null, pooled=pooled
         )
-        specs2 = _compare._metric_specs(columns, paired, func)
-        keys = _compare.as_list(within)
-        _compare._check_result_names(keys, by, func)
+        specs2 = metric_specs(columns, paired, func)
+        keys = as_list(within)
+        check_result_names(keys, func)
         kind = "diff" if paired is not None else "value"
         specs = [(name, cols, kind) for name, cols in specs2]
         all_keys = keys + ([by] if by is not None else [])
         table, dropped = merged_summaries(self._obj, all_keys, specs)
         names = [s[0] for s in specs]
-        table["metric"] = [names[i] for i in table[_METRIC]]
-        table = table.drop(columns=[_METRIC])
+        table["metric"] = [names[i] for i in table[METRIC]]
+        table = table.drop(columns=[METRIC])
         opts: dict[str, Any] = dict(options)
         if by is not None:
             if paired is not None:
                 raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
-            result = _compare.compare_summaries(
+            result = compare_summaries(
                 table, within=keys, arm=by, groups=groups, metric="metric", **opts
             )
         elif paired is not None:
             labs = tuple(str(v) for v in specs2[0][1])
-            result = _compare.compare_summaries(
+            result = compare_summaries(
                 table, within=keys, metric="metric", paired=True, labels=labs, **opts
             )
         else:
-            result = _compare.compare_summaries(table, within=keys, metric="metric", **opts)
+            result = compare_summaries(table, within=keys, metric="metric", **opts)
         notes = list(result.warnings)
         if dropped:
             what = "segment key" if by is None else f"segment key or {by!r} value"

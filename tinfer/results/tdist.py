@@ -1,4 +1,9 @@
-"""The t distribution as an object: ``tinfer.tdist(df)``."""
+"""The t distribution as an object, ``tinfer.tdist(df)``, and a view of it with an area.
+
+Numbers come from :mod:`tinfer.core.distribution`; the words (areas in symbols, moments
+with the df conditions under which they exist) are here; the card and chart are in
+:mod:`tinfer.display.tdist`.
+"""
 
 from __future__ import annotations
 
@@ -8,8 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._validation import check_df, check_level, check_probability, check_side
-from .core import distribution as dist
+from ..checks import check_df, check_level, check_probability, check_side
+from ..core import distribution as dist
+from .format import fmt_df, fmt_num, fmt_p
 
 
 @dataclass(frozen=True)
@@ -127,7 +133,7 @@ class TDistribution:
         >>> round(ex.area, 6)
         0.797148
         """
-        from .display.widgets import explore_tdist
+        from ..display.widgets import explore_tdist
 
         return explore_tdist(self)
 
@@ -149,7 +155,7 @@ class TDistribution:
         >>> type(tinfer.tdist(8).chart(low=2.0)).__name__
         'LayerChart'
         """
-        from .display.charts import tdist_chart
+        from ..display.tdist import tdist_chart
 
         return tdist_chart(self, low, high, percentiles, normal)
 
@@ -182,7 +188,7 @@ class TDistribution:
         return TDistView(self, low, high, tuple(float(q) for q in percentiles))
 
     def _repr_mimebundle_(self, include=None, exclude=None):
-        from .display.render import mimebundle
+        from ..display.render import mimebundle
 
         return mimebundle(self)
 
@@ -228,13 +234,26 @@ class TDistView:
         """
         return self.dist.chart(self.low, self.high, self.percentiles, normal)
 
-    def __str__(self) -> str:
-        from .display.card import tdist_lines
+    @property
+    def area_words(self) -> str:
+        """The area in symbols, e.g. "P(-1 < T < 2)"."""
+        return area_words(self.low, self.high)
 
-        return "\n".join(tdist_lines(self))
+    def lines(self) -> list[str]:
+        """The plain-text lines of this view (also its ``str``)."""
+        lines = [str(self.dist)]
+        if self.low is not None or self.high is not None:
+            lines.append(f"  area {self.area_words} = {fmt_p(float(self.area))}")
+        for q, v in zip(self.percentiles, self.values, strict=True):
+            lines.append(f"  {100 * q:.4g}% percentile: {fmt_num(v, 4)}")
+        lines.extend(f"  {k}: {v}" for k, v in moments(self.dist))
+        return lines
+
+    def __str__(self) -> str:
+        return "\n".join(self.lines())
 
     def _repr_mimebundle_(self, include=None, exclude=None):
-        from .display.render import mimebundle
+        from ..display.render import mimebundle
 
         return mimebundle(self)
 
@@ -248,3 +267,49 @@ def tdist(df: float) -> TDistribution:
     """Student's t distribution with ``df`` degrees of freedom (non-integer allowed; ``math.inf``
     gives the standard normal)."""
     return TDistribution(df)
+
+
+def area_words(low: float | None, high: float | None) -> str:
+    """The requested area in symbols, e.g. ``P(-1 < T < 2)``.
+
+    >>> area_words(None, 2.0), area_words(-1.0, 2.0)
+    ('P(T < 2)', 'P(-1 < T < 2)')
+    """
+    if low is None and high is None:
+        return "P(−∞ < T < ∞)"
+    if low is None:
+        return f"P(T < {fmt_num(high)})"
+    if high is None:
+        return f"P(T > {fmt_num(low)})"
+    return f"P({fmt_num(low)} < T < {fmt_num(high)})"
+
+
+def moments(distribution: TDistribution) -> list[tuple[str, str]]:
+    """Mean, variance, SD and median with the df conditions under which they exist.
+
+    >>> moments(tdist(1.5))[1]
+    ('variance', 'infinite (finite only for df > 2)')
+    """
+    df = distribution.df
+    mean = "0 (exists for df > 1)" if df > 1 else "undefined (exists only for df > 1)"
+    if math.isinf(df):
+        var = "1 (standard normal)"
+    elif df > 2:
+        var = f"{fmt_num(distribution.variance)} (df / (df − 2), finite for df > 2)"
+    elif df > 1:
+        var = "infinite (finite only for df > 2)"
+    else:
+        var = "undefined (finite only for df > 2)"
+    sd_val = distribution.sd
+    if math.isnan(sd_val):
+        sd = "undefined (finite only for df > 2)"
+    elif math.isinf(sd_val):
+        sd = "infinite (finite only for df > 2)"
+    else:
+        sd = fmt_num(sd_val)
+    return [("mean", mean), ("variance", var), ("SD", sd), ("median", "0 (every df)")]
+
+
+def df_words(df: float) -> str:
+    """df as shown on cards: "12", "20.73" or "∞ (standard normal)"."""
+    return "∞ (standard normal)" if math.isinf(df) else fmt_df(df)

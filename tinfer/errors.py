@@ -1,4 +1,7 @@
-"""Error classes. Each also inherits from the built-in error people already catch."""
+"""Error and warning classes. Each error also inherits from the built-in error people catch.
+
+The bottom of the package: every layer may import this module, and it imports nothing.
+"""
 
 from __future__ import annotations
 
@@ -17,3 +20,7 @@ class DataError(TinferError):
 
 class MissingDependencyError(TinferError, ImportError):
     """An optional package is needed for this feature and is not installed."""
+
+
+class SmallSegmentWarning(UserWarning):
+    """Some segments had too few values (or no spread) to test; their results are NaN."""

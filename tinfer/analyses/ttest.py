@@ -1,4 +1,10 @@
-"""Turn summaries and labels into result objects (shared by the accessor and from_summary)."""
+"""One t procedure: summaries and labels -> a :class:`~tinfer.TResult`.
+
+Shared by every entry point (the pandas and Dask accessors, ``from_summary``) and by
+``TResult.recompute``. Checks the options, runs :mod:`tinfer.core.procedures` (or Yuen's
+trimmed-mean t, :mod:`tinfer.analyses.robust`), adds a margin claim
+(:mod:`tinfer.analyses.equivalence`) and wraps the numbers in the result type.
+"""
 
 from __future__ import annotations
 
@@ -6,12 +12,15 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from ._errors import DataError, ParameterError
-from ._margin import check_margin, equivalence_for
-from ._validation import check_bool, check_finite, check_level, check_side
-from .core import procedures
-from .core.summary import Summary
-from .results import Effect, GroupStats, TResult, now_iso
+from ..checks import check_bool, check_finite, check_level, check_side
+from ..core import procedures
+from ..core.summary import Summary
+from ..errors import DataError
+from ..results.parts import Effect, GroupStats
+from ..results.provenance import frozen_copy, now_iso
+from ..results.ttest import TResult
+from .equivalence import check_margin, equivalence_for
+from .robust import ROBUST_EFFECT, check_trim, trimmed
 
 METHODS = {
     "one-sample": "One-sample t test",
@@ -20,6 +29,11 @@ METHODS = {
     "pooled": "Two-sample t test, pooled variance",
 }
 EFFECT_NAMES = {"one-sample": "Cohen's d", "paired": "d_z", "two-sample": "Hedges' g"}
+
+
+def _owned(x: np.ndarray) -> bool:
+    """True for an array a result already owns: read-only and not a view of another."""
+    return isinstance(x, np.ndarray) and not x.flags.writeable and x.base is None
 
 
 def _scalar(x) -> float:
@@ -102,150 +116,111 @@ def build(
     trim = check_trim(trim, func, samples, pooled)
     labels = tuple(str(v) for v in labels)
     n_missing = tuple(n_missing) or (0,) * len(summaries)
+    if samples is not None:  # the result owns read-only copies, never the caller's column
+        samples = tuple(x if _owned(x) else frozen_copy(x) for x in samples)
+    opts = dict(null=null, level=level, side=side, effect_ci=not trim)
     if design == "two-sample":
-        a, b = summaries
-        for k, (s, lab) in enumerate(zip(summaries, labels, strict=True)):
-            check_summary_n(s, lab)
-            check_scale(s, f"{variable} in group {lab!r}", None if samples is None else samples[k])
-        if not (_scalar(a.ssd) > 0 or _scalar(b.ssd) > 0):
-            raise DataError(
-                f"All values of {variable} are equal within each group (no spread), so the "
-                "standard error is zero and t is undefined."
-            )
-        c = procedures.two_sample(
-            a, b, null=null, level=level, side=side, pooled=pooled, effect_ci=not trim
+        c, comparison, groups = _two_sample(
+            summaries, labels, variable, samples, n_missing, pooled=pooled, **opts
         )
-        comparison = f"{labels[0]} minus {labels[1]}"
         method = METHODS["pooled" if pooled else "welch"]
-        groups = tuple(
-            group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, n_missing, strict=True)
-        )
     else:
-        (s,) = summaries
-        what = f"the differences {labels[0]} minus {labels[1]}" if design == "paired" else variable
-        check_summary(s, what, None if samples is None else samples[0])
-        c = procedures.one_sample(s, null=null, level=level, side=side, effect_ci=not trim)
-        if design == "paired":
-            comparison = f"{labels[0]} minus {labels[1]}"
-            groups = (*extra_groups, group_stats(comparison, s, n_missing[0]))
-        else:
-            comparison = f"mean of {variable}"
-            labels = labels or (variable,)
-            groups = (group_stats(labels[0], s, n_missing[0]),)
-        method = METHODS[design]
-        pooled = False
+        c, comparison, groups, labels = _one_sample(
+            design, summaries[0], labels, variable, samples, n_missing[0], extra_groups, **opts
+        )
+        method, pooled = METHODS[design], False
     if trim:
         c, method = trimmed(design, samples, trim, labels, variable, null, level, side)
         if design == "one-sample":
             comparison = f"{trim * 100:g}% trimmed mean of {variable}"
-    warns = list(warnings)
-    for g in groups:
-        if g.n_missing:
-            warns.append(f"{g.n_missing} missing value(s) dropped from {g.label}.")
-    p = _scalar(c.p)
-    if p == 0.0 or p < 1e-300:
-        warns.append(_UNDERFLOW_NOTE)
+    nums = _numbers(c)
+    equivalence = None
+    if margin_spec is not None:
+        words = dict(labels=labels, comparison=comparison, units=units, func=func)
+        est = {k: nums[k] for k in ("estimate", "se", "df")}
+        equivalence = equivalence_for(
+            margin_spec, design=design, summaries=tuple(summaries), null=null, level=level,
+            **est, **words,
+        )  # fmt: skip
     return TResult(
         design=design,
         variable=str(variable),
         comparison=comparison,
-        estimate=_scalar(c.estimate),
-        se=_scalar(c.se),
-        t=_scalar(c.t),
-        df=_scalar(c.df),
-        p=p,
-        log_p=_scalar(c.log_p),
-        ci=(_scalar(c.ci_low), _scalar(c.ci_high)),
+        **nums,
         level=level,
         side=side,
         null=null,
-        effect=Effect(
-            name=ROBUST_EFFECT if trim else EFFECT_NAMES[design],
-            value=_scalar(c.effect),
-            ci=(_scalar(c.effect_low), _scalar(c.effect_high)),
-            level=level,
-        ),
+        effect=_effect(c, ROBUST_EFFECT if trim else EFFECT_NAMES[design], level),
         groups=groups,
         method=method,
         pooled=pooled,
         units=units,
-        warnings=tuple(dict.fromkeys(warns)),
+        warnings=_notes(warnings, groups, nums["p"]),
         labels=labels,
         summaries=tuple(summaries),
         samples=samples,
         created=now_iso(),
         trim=trim,
-        equivalence=None
-        if margin_spec is None
-        else equivalence_for(
-            margin_spec,
-            design=design,
-            summaries=tuple(summaries),
-            estimate=_scalar(c.estimate),
-            se=_scalar(c.se),
-            df=_scalar(c.df),
-            null=null,
-            level=level,
-            labels=labels,
-            comparison=comparison,
-            units=units,
-            func=func,
-        ),
+        equivalence=equivalence,
     )
 
 
-ROBUST_EFFECT = "robust d (AKP)"
-_UNDERFLOW_NOTE = "The p-value is below what double precision holds; log_p keeps its exact log."
+def _effect(c, name: str, level: float) -> Effect:
+    """The effect size of one computed test with its interval."""
+    ci = (_scalar(c.effect_low), _scalar(c.effect_high))
+    return Effect(name=name, value=_scalar(c.effect), ci=ci, level=level)
 
 
-def check_trim(trim, func: str, samples, pooled: bool) -> float:
-    """``trim`` as a float in [0, 0.5); trimming needs the values and excludes ``pooled``."""
-    if isinstance(trim, bool) or not isinstance(trim, int | float) or not 0 <= trim < 0.5:
-        raise ParameterError(
-            f"The 'trim' parameter of {func} must be a float in [0, 0.5) (0 for the ordinary "
-            f"t, 0.2 for 20% trimmed means). Got {trim!r} instead."
+def _numbers(c) -> dict:
+    """The numbers of one computed test as Python floats, keyed as TResult's fields."""
+    names = ("estimate", "se", "t", "df", "p", "log_p")
+    return {k: _scalar(getattr(c, k)) for k in names} | {
+        "ci": (_scalar(c.ci_low), _scalar(c.ci_high))
+    }
+
+
+def _two_sample(summaries, labels, variable, samples, n_missing, **opts):
+    """Welch or pooled t on two summaries, after checking each group can be tested."""
+    a, b = summaries
+    for k, (s, lab) in enumerate(zip(summaries, labels, strict=True)):
+        check_summary_n(s, lab)
+        check_scale(s, f"{variable} in group {lab!r}", None if samples is None else samples[k])
+    if not (_scalar(a.ssd) > 0 or _scalar(b.ssd) > 0):
+        raise DataError(
+            f"All values of {variable} are equal within each group (no spread), so the "
+            "standard error is zero and t is undefined."
         )
-    if trim and samples is None:
-        raise ParameterError(
-            f"The 'trim' parameter of {func} needs the data values; results from published "
-            "summaries (n, mean, sd) cannot be trimmed. Use trim=0."
-        )
-    if trim and pooled:
-        raise ParameterError(
-            f"The 'pooled' parameter of {func} must be False with trim > 0: Yuen's test does "
-            "not pool variances. Got True instead."
-        )
-    return float(trim)
+    c = procedures.two_sample(a, b, **opts)
+    groups = tuple(
+        group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, n_missing, strict=True)
+    )
+    return c, f"{labels[0]} minus {labels[1]}", groups
 
 
-def trimmed(design, samples, trim, labels, variable, null, level, side):
-    """Yuen's trimmed-mean t on the stored values; returns the computed arrays and method."""
-    from .core import robust
-
-    parts = [robust.Trimmed.of(np.asarray(x, float), trim) for x in samples]
-    names = list(labels) if design == "two-sample" else [f"the values of {variable}"]
+def _one_sample(design, s, labels, variable, samples, n_missing, extra_groups, **opts):
+    """One-sample t on one summary (of the values, or of paired differences)."""
+    what = f"the differences {labels[0]} minus {labels[1]}" if design == "paired" else variable
+    check_summary(s, what, None if samples is None else samples[0])
+    c = procedures.one_sample(s, **opts)
     if design == "paired":
-        names = [f"the differences {labels[0]} minus {labels[1]}"]
-    for p, name in zip(parts, names, strict=True):
-        if int(p.h) < 2:
-            raise DataError(
-                f"After trimming {trim:g} per tail, {name} keep(s) {int(p.h)} value(s); "
-                "a trimmed-mean t needs at least 2. Use a smaller trim or more data."
-            )
-    if not all(_scalar(p.wvar) > 0 for p in parts):
-        bad = [n for p, n in zip(parts, names, strict=True) if not _scalar(p.wvar) > 0]
-        if design != "two-sample" or len(bad) == 2:
-            raise DataError(
-                f"The winsorised values of {' and '.join(bad)} have no spread, so the "
-                "trimmed-mean standard error is zero and t is undefined. Use a smaller trim."
-            )
-    pct = f"{trim * 100:g}% trimmed"
-    if design == "two-sample":
-        c = robust.yuen_two_sample(*parts, null=null, level=level, side=side)
-        return c, f"Yuen trimmed-mean t ({pct})"
-    c = robust.yuen_one_sample(parts[0], null=null, level=level, side=side)
-    kind = "Paired" if design == "paired" else "One-sample"
-    return c, f"{kind} Yuen trimmed-mean t ({pct})"
+        comparison = f"{labels[0]} minus {labels[1]}"
+        return c, comparison, (*extra_groups, group_stats(comparison, s, n_missing)), labels
+    labels = labels or (variable,)
+    return c, f"mean of {variable}", (group_stats(labels[0], s, n_missing),), labels
+
+
+def _notes(warnings: Sequence[str], groups: Sequence[GroupStats], p: float) -> tuple[str, ...]:
+    """The caller's notes, the missing values dropped per group, and a p underflow note."""
+    notes = list(warnings)
+    notes += [
+        f"{g.n_missing} missing value(s) dropped from {g.label}." for g in groups if g.n_missing
+    ]
+    if p == 0.0 or p < 1e-300:
+        notes.append(_UNDERFLOW_NOTE)
+    return tuple(dict.fromkeys(notes))
+
+
+_UNDERFLOW_NOTE = "The p-value is below what double precision holds; log_p keeps its exact log."
 
 
 def check_summary_n(s: Summary, label: str) -> None:

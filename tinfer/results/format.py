@@ -1,4 +1,4 @@
-"""Number formatting shared by text reprs and cards.
+"""Number formatting shared by text reprs, tables and cards (the words of every result).
 
 The p-value rule (documented in docs/methods.md):
 - three significant digits, fixed notation down to 0.0001 ("0.0382", "0.000417");
@@ -87,3 +87,14 @@ def fmt_df(df: float) -> str:
 def fmt_level(level: float) -> str:
     """Confidence level as a percentage: 0.95 -> '95%', 0.999 -> '99.9%'."""
     return f"{level * 100:.10g}%"
+
+
+def fmt_sig(x: float, digits: int = 3) -> str:
+    """A number with ``digits`` significant digits and a real minus sign.
+
+    >>> fmt_sig(0.123456), fmt_sig(-2.5e-7, 2), fmt_sig(float("nan"))
+    ('0.123', '−2.5e−07', 'n/a')
+    """
+    if not math.isfinite(x):
+        return "n/a"
+    return f"{x:.{digits}g}".replace("-", "−")

@@ -1,4 +1,8 @@
-"""Tests from published summary statistics: ``tinfer.from_summary``."""
+"""Tests from published summary statistics: ``tinfer.from_summary``.
+
+The same procedures as on a DataFrame, from counts, means and SDs (no values: no trimming,
+no checks of the data).
+"""
 
 from __future__ import annotations
 
@@ -6,16 +10,18 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from ._build import build
-from ._errors import ParameterError
-from .core.summary import Summary
-from .results import TResult
+from ..core.summary import Summary
+from ..docstrings import fill_params
+from ..errors import ParameterError
+from ..results.ttest import TResult
+from .ttest import build
 
 
 def _is_seq(x) -> bool:
     return isinstance(x, Sequence | np.ndarray) and not isinstance(x, str)
 
 
+@fill_params(sd="the SD given, the SD of the differences, or the pooled SD of two samples")
 def from_summary(
     n,
     mean,
@@ -45,19 +51,24 @@ def from_summary(
     ----------
     n, mean, sd : float or pair of floats
         Sample size, mean and standard deviation (per group for two samples).
-    null, side, level, pooled, units
-        As for the DataFrame methods.
+    null : float, default 0
+        The hypothesised mean, mean difference (first minus second) or mean of the paired
+        differences.
+    {side}
+    {level}
+    {pooled}
     paired : bool, default False
         The scalars describe within-unit differences.
     labels : sequence of str, optional
         Names of the groups (or of the two conditions, for paired differences).
     variable : str, default "value"
         What was measured.
-    margin, margin_units, worse, superior
-        An equivalence, non-inferiority or superiority-by-margin claim by two one-sided
-        tests, as for the DataFrame methods: ``margin=2.0`` is the band ``null`` ± 2;
-        ``margin=(-1.5, 2.0)`` gives offsets relative to ``null``; ``worse="lower"`` makes
-        it one-sided ("not worse than ``null`` by more than the margin").
+    {units}
+    {margin_options}
+
+    Returns
+    -------
+    TResult
 
     Examples
     --------

@@ -14,8 +14,8 @@ import pytest
 from scipy import stats
 
 import tinfer
-from tinfer import _diagnostics
-from tinfer._diagnostics import BootstrapCheck, Diagnostics
+from tinfer import BootstrapCheck, Diagnostics
+from tinfer.display import progress
 
 
 @pytest.fixture
@@ -229,7 +229,7 @@ class TestBootstrap:
 
     def test_no_progress_bar_outside_a_kernel(self):
         """Outside IPython no progress bar is made, however long the run."""
-        assert _diagnostics._progress(10**6, 10**12) == (None, None)
+        assert progress.progress_bar(10**6, 10**12) == (None, None)
 
     def test_progress_bar_updates_per_chunk(self, clean, monkeypatch):
         """Inside a kernel a long run drives an ipywidgets IntProgress to n_resamples."""
@@ -243,8 +243,8 @@ class TestBootstrap:
             made.append(bar)
             return bar
 
-        monkeypatch.setattr(_diagnostics, "_in_kernel", lambda: True)
-        monkeypatch.setattr(_diagnostics, "PROGRESS_WORK", 1)
+        monkeypatch.setattr(progress, "in_kernel", lambda: True)
+        monkeypatch.setattr(progress, "PROGRESS_WORK", 1)
         monkeypatch.setattr(ipywidgets, "IntProgress", spy)
         clean.tinfer.one_sample("grams").bootstrap(3000, seed=1)
         assert len(made) == 1 and made[0].value == 3000 and made[0].max == 3000

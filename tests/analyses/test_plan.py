@@ -305,3 +305,32 @@ class TestGridText:
         assert "... 480 more row(s); see to_frame()" in text
         assert len(text.splitlines()) < 30
         assert len(p.to_frame()) == 500
+
+
+# ----------------------------------------------------------------------------- recompute
+class TestPlanRecompute:
+    def test_new_effect_solved_again(self):
+        """recompute(effect=0.8) solves n again: the smallest n whose scipy.stats.nct power
+        reaches 0.8 (26 per group; Cohen 1988 table 2.4.1 gives 26, from memory)."""
+        p = tinfer.plan("two-sample", effect=0.5, power=0.8).recompute(effect=0.8)
+        assert (p.solved, p.n, p.n2) == ("n", 26, 26)
+        assert nct_power(0.8, 26, 26) >= 0.8 > nct_power(0.8, 25, 25)
+
+    def test_keeps_what_was_given(self):
+        """Inputs not changed (level, side, ratio, sd) keep the plan's values."""
+        p = tinfer.plan("two-sample", diff=2.0, sd=4.0, power=0.9, ratio=2, side="upper")
+        q = p.recompute(power=0.8)
+        assert (q.sd, q.ratio, q.side, q.level, q.effect) == (4.0, 2.0, "upper", 0.95, 0.5)
+        assert q.power == pytest.approx(nct_power(0.5, q.n, q.n2, 0.95, "upper"), rel=1e-10)
+        assert q.power >= 0.8
+
+    def test_equivalence_plan(self):
+        """An equivalence plan keeps its margin and solves n again for the new power."""
+        p = tinfer.plan("equivalence-paired", margin=0.5, power=0.8)
+        q = p.recompute(power=0.9)
+        assert q.margin == p.margin and q.side == "equivalence" and q.n > p.n
+
+    def test_unknown_option(self):
+        """An option plan does not take raises TypeError naming the allowed ones."""
+        with pytest.raises(TypeError, match=r"unexpected option"):
+            tinfer.plan("paired", effect=0.4, n=30).recompute(rate=0.1)

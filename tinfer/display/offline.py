@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from ._errors import MissingDependencyError
+from ..optional import require
 
 
 def offline_charts(enable: bool = True) -> None:
@@ -24,11 +24,6 @@ def offline_charts(enable: bool = True) -> None:
     >>> alt.renderers.active
     'default'
     """
-    try:
-        import altair as alt
-        import vl_convert  # noqa: F401
-    except ImportError as exc:
-        raise MissingDependencyError(
-            "offline_charts needs altair and vl-convert-python: pip install 'tinfer[display]'."
-        ) from exc
+    alt = require("altair", "offline_charts")
+    require("vl_convert", "offline_charts")
     alt.renderers.enable("svg" if enable else "default")

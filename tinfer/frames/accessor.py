@@ -1,8 +1,9 @@
 """The ``.tinfer`` accessor on pandas DataFrames and Series.
 
-Thin by design: it picks columns, drops missing values, splits groups and hands
-summaries to the core. pandas builds a new accessor on every attribute access, so the
-constructor only checks and stores the object.
+Thin by design: it picks columns, and hands them to :mod:`tinfer.frames.ttest` (one test)
+or :mod:`tinfer.frames.batch` (many tests), which drop missing values, split groups and
+call the analyses. pandas builds a new accessor on every attribute access, so the
+constructor only stores the object.
 """
 
 from __future__ import annotations
@@ -11,57 +12,20 @@ from collections.abc import Hashable, Sequence
 
 import pandas as pd
 
-from . import _frames
-from ._build import build, group_stats
-from ._errors import DataError
-from .core.summary import Summary
-from .results import TResult
+from ..docstrings import fill_params
+from ..errors import DataError
+from ..results.batch import BatchResult
+from ..results.ttest import TResult
+from . import ttest
+from .batch import compare_frame
+from .columns import column as column_of
+from .columns import finite, one_column, to_float
 
+Margin = float | tuple[float, float] | None
 
-def _summary(sample: _frames.Sample) -> Summary:
-    return Summary.of(sample.values)
-
-
-def _one_sample(sample: _frames.Sample, variable, *, func, **opts) -> TResult:
-    return build(
-        "one-sample",
-        (_summary(sample),),
-        func=func,
-        variable=variable,
-        labels=(sample.label,),
-        n_missing=(sample.n_missing,),
-        samples=(sample.values,),
-        **opts,
-    )
-
-
-def _paired(a: _frames.Sample, b: _frames.Sample, dropped: int, variable, *, func, **opts):
-    diff = a.values - b.values
-    extra = (group_stats(a.label, _summary(a)), group_stats(b.label, _summary(b)))
-    return build(
-        "paired",
-        (Summary.of(diff),),
-        func=func,
-        variable=variable,
-        labels=(a.label, b.label),
-        n_missing=(dropped,),
-        extra_groups=extra,
-        samples=(diff,),
-        **opts,
-    )
-
-
-def _two_sample(a: _frames.Sample, b: _frames.Sample, variable, *, func, **opts) -> TResult:
-    return build(
-        "two-sample",
-        (_summary(a), _summary(b)),
-        func=func,
-        variable=variable,
-        labels=(a.label, b.label),
-        n_missing=(a.n_missing, b.n_missing),
-        samples=(a.values, b.values),
-        **opts,
-    )
+_ONE_SIDE = "the mean differs from, is greater than, or is less than ``null``."
+_TWO_SIDE = '"upper": the first mean exceeds the second by more than ``null``.'
+_PAIR_SIDE = '"upper": the mean difference (first minus second) exceeds ``null``.'
 
 
 def _is_pair(x) -> bool:
@@ -75,6 +39,7 @@ class TinferFrameAccessor:
     def __init__(self, obj: pd.DataFrame) -> None:
         self._obj = obj
 
+    @fill_params(side=_ONE_SIDE, sd="the sample SD", trimmed="a trimmed mean")
     def one_sample(
         self,
         column: Hashable,
@@ -83,7 +48,7 @@ class TinferFrameAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
-        margin: float | tuple[float, float] | None = None,
+        margin: Margin = None,
         margin_units: str = "raw",
         worse: str | None = None,
         superior: bool = False,
@@ -97,30 +62,11 @@ class TinferFrameAccessor:
             The measurements. Missing values are dropped and counted.
         null : float, default 0
             The hypothesised mean (a target, a specification, a reference value).
-        side : {"two-sided", "upper", "lower"}
-            The alternative: the mean differs from, is greater than, or is less than ``null``.
-        level : float, default 0.95
-            Confidence level of the interval; the test's significance level is ``1 - level``.
-        units : str, optional
-            Units of the measurements, shown next to estimates.
-        margin : float or (float, float), optional
-            Ask for an equivalence claim by two one-sided tests (TOST): a positive number
-            ``m`` is the band ``null - m`` to ``null + m``; a pair ``(lower, upper)`` gives
-            offsets relative to ``null`` with ``lower < 0 < upper``, e.g. ``(-1.5, 2.0)``.
-            Each one-sided test runs at ``1 - level``; the matching interval is at
-            ``2 * level - 1`` (90% for the default level).
-        margin_units : {"raw", "standardised"}, default "raw"
-            "standardised": the margin is in SDs (converted with the sample SD); the raw
-            margin then depends on the observed SD.
-        worse : {None, "lower", "higher"}
-            For a one-sided claim (non-inferiority): the direction that counts as worse.
-            With ``margin=m`` the claim is "not worse than ``null`` by more than m".
-        superior : bool, default False
-            With ``worse``: claim "better than ``null`` by more than the margin" instead.
-        trim : float, default 0
-            Proportion trimmed from each tail, in [0, 0.5): with ``trim=0.2`` Yuen's
-            trimmed-mean t (20% trimmed means, winsorised variances) replaces the t test
-            and the estimate is a trimmed mean. 0 gives the ordinary t.
+        {side}
+        {level}
+        {units}
+        {margin_options}
+        {trim}
 
         Returns
         -------
@@ -134,22 +80,12 @@ class TinferFrameAccessor:
         >>> round(r.estimate, 3), round(r.t, 3), round(r.p, 4)
         (501.05, 2.737, 0.0409)
         """
-        sample = _frames.one_column(self._obj, column)
-        return _one_sample(
-            sample,
-            str(column),
-            func="one_sample",
-            null=null,
-            side=side,
-            level=level,
-            units=units,
-            margin=margin,
-            margin_units=margin_units,
-            worse=worse,
-            superior=superior,
-            trim=trim,
-        )
+        sample = one_column(self._obj, column)
+        opts = dict(null=null, side=side, level=level, units=units, trim=trim)
+        opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        return ttest.one_sample(sample, str(column), func="one_sample", **opts)
 
+    @fill_params(side=_TWO_SIDE, sd="the pooled SD", trimmed="a trimmed mean difference")
     def two_sample(
         self,
         column: Hashable | Sequence[Hashable],
@@ -161,7 +97,7 @@ class TinferFrameAccessor:
         level: float = 0.95,
         pooled: bool = False,
         units: str | None = None,
-        margin: float | tuple[float, float] | None = None,
+        margin: Margin = None,
         margin_units: str = "raw",
         worse: str | None = None,
         superior: bool = False,
@@ -182,32 +118,16 @@ class TinferFrameAccessor:
             level 10 comes before a level 2).
         null : float, default 0
             The hypothesised difference (first minus second).
-        side : {"two-sided", "upper", "lower"}
-            "upper": the first mean exceeds the second by more than ``null``.
-        level : float, default 0.95
-            Confidence level.
-        pooled : bool, default False
-            True for Student's equal-variance test; False for Welch's test.
-        units : str, optional
-            Units of the measurements.
-        margin : float or (float, float), optional
-            Ask for an equivalence claim by two one-sided tests (TOST): a positive number
-            ``m`` is the band ``null - m`` to ``null + m``; a pair ``(lower, upper)`` gives
-            offsets relative to ``null`` with ``lower < 0 < upper``, e.g. ``(-1.5, 2.0)``.
-            Each one-sided test runs at ``1 - level``; the matching interval is at
-            ``2 * level - 1`` (90% for the default level).
-        margin_units : {"raw", "standardised"}, default "raw"
-            "standardised": the margin is in SDs (converted with the pooled SD); the raw
-            margin then depends on the observed SD.
-        worse : {None, "lower", "higher"}
-            For a one-sided claim (non-inferiority): the direction that counts as worse.
-            With ``margin=m`` the claim is "not worse than ``null`` by more than m".
-        superior : bool, default False
-            With ``worse``: claim "better than ``null`` by more than the margin" instead.
-        trim : float, default 0
-            Proportion trimmed from each tail, in [0, 0.5): with ``trim=0.2`` Yuen's
-            trimmed-mean t (20% trimmed means, winsorised variances) replaces the t test
-            and the estimate is a trimmed mean difference. 0 gives the ordinary t.
+        {side}
+        {level}
+        {pooled}
+        {units}
+        {margin_options}
+        {trim}
+
+        Returns
+        -------
+        TResult
 
         Examples
         --------
@@ -218,23 +138,28 @@ class TinferFrameAccessor:
         >>> r.comparison, round(r.estimate, 3), round(r.df, 2)
         ('drip minus furrow', 1.15, 4.75)
         """
-        opts = dict(null=null, side=side, level=level, pooled=pooled, units=units)
+        opts = dict(null=null, side=side, level=level, pooled=pooled, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
-        opts["trim"] = trim
         if by is None:
             if not _is_pair(column):
                 raise DataError(
                     "two_sample needs either by= (a grouping column) or a pair of columns, "
                     f"one per group. Got column={column!r} and no by."
                 )
-            a, b = (_frames.one_column(self._obj, c) for c in column)
-            return _two_sample(a, b, f"{column[0]} vs {column[1]}", func="two_sample", **opts)
-        a, b = _frames.two_groups(self._obj, column, by, groups)
-        no_key = int(_frames.column(self._obj, by).isna().sum())
+            a, b = (one_column(self._obj, c) for c in column)
+            variable = f"{column[0]} vs {column[1]}"
+            return ttest.two_sample(a, b, variable, func="two_sample", **opts)
+        a, b = ttest.two_groups(self._obj, column, by, groups)
+        no_key = int(column_of(self._obj, by).isna().sum())
         if no_key:
             opts["warnings"] = (f"{no_key} row(s) with a missing {by!r} value were not used.",)
-        return _two_sample(a, b, str(column), func="two_sample", **opts)
+        return ttest.two_sample(a, b, str(column), func="two_sample", **opts)
 
+    @fill_params(
+        side=_PAIR_SIDE,
+        sd="the SD of the differences",
+        trimmed="the trimmed mean of the differences",
+    )
     def paired(
         self,
         first: Hashable,
@@ -247,7 +172,7 @@ class TinferFrameAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
-        margin: float | tuple[float, float] | None = None,
+        margin: Margin = None,
         margin_units: str = "raw",
         worse: str | None = None,
         superior: bool = False,
@@ -258,11 +183,30 @@ class TinferFrameAccessor:
         Wide data: ``paired("before", "after")``, one row per unit. Long data:
         ``paired("score", by="visit", subject="unit_id")``, one row per unit and
         condition; pairs are matched by ``subject``. Rows missing either value of a
-        pair are dropped and counted. ``margin``, ``margin_units``, ``worse`` and
-        ``superior`` ask for an equivalence or non-inferiority claim as in ``one_sample``,
-        with a standardised margin converted by the SD of the differences.
-        ``trim`` (e.g. 0.2) runs Yuen's trimmed-mean t on the differences: the estimate is
-        then the trimmed mean of the differences.
+        pair are dropped and counted.
+
+        Parameters
+        ----------
+        first, second : column label
+            Wide data: the two measurement columns. Long data: ``first`` is the value
+            column and ``second`` is left out.
+        by : column label, optional
+            Long data: the condition column (two levels, or the two named in ``groups``).
+        subject : column label, optional
+            Long data: the unit id that matches the two values of a pair.
+        groups : (first, second), optional
+            Long data: the two conditions and their order (default: sorted as text).
+        null : float, default 0
+            The hypothesised mean of the differences.
+        {side}
+        {level}
+        {units}
+        {margin_options}
+        {trim}
+
+        Returns
+        -------
+        TResult
 
         Examples
         --------
@@ -273,15 +217,14 @@ class TinferFrameAccessor:
         >>> r.comparison, round(r.estimate, 3)
         ('before minus after', 0.6)
         """
-        opts = dict(null=null, side=side, level=level, units=units)
+        opts = dict(null=null, side=side, level=level, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
-        opts["trim"] = trim
         if by is None and subject is None:
             if second is None:
                 raise DataError(
                     "paired needs two columns (wide data) or by= and subject= (long data)."
                 )
-            a, b, dropped = _frames.paired_wide(self._obj, first, second)
+            a, b, dropped = ttest.paired_wide(self._obj, first, second)
             variable = f"{first} vs {second}"
         else:
             if by is None or subject is None or second is not None:
@@ -289,10 +232,11 @@ class TinferFrameAccessor:
                     "Long paired data need one value column plus by= (the condition column) and "
                     "subject= (the unit id), e.g. paired('score', by='visit', subject='unit_id')."
                 )
-            a, b, dropped = _frames.paired_long(self._obj, first, by, subject, groups)
+            a, b, dropped = ttest.paired_long(self._obj, first, by, subject, groups)
             variable = str(first)
-        return _paired(a, b, dropped, variable, func="paired", **opts)
+        return ttest.paired(a, b, dropped, variable, func="paired", **opts)
 
+    @fill_params(side=_TWO_SIDE)
     def compare(
         self,
         columns: Hashable | Sequence[Hashable] | None = None,
@@ -307,7 +251,7 @@ class TinferFrameAccessor:
         level: float = 0.95,
         side: str = "two-sided",
         pooled: bool = False,
-    ):
+    ) -> BatchResult:
         """Many t tests at once: every metric in every segment, with adjusted p-values.
 
         One pass over the rows builds n, mean and the sum of squared deviations of every
@@ -332,14 +276,7 @@ class TinferFrameAccessor:
             Paired wide columns: each pair is tested on its within-row differences
             first minus second (rows missing either value are dropped). Replaces
             ``columns``.
-        adjust : {"holm", "hochberg", "bh", "by", "none"}, default "holm"
-            Multiplicity adjustment over all tested rows as one family; also
-            "benjamini-hochberg" and "benjamini-yekutieli".
-        rate : float, default 0.05
-            Error rate (family-wise for Holm and Hochberg, false discovery rate for BH
-            and BY): a row is a discovery when its adjusted p-value is at most ``rate``.
-        level, side, pooled
-            As for ``two_sample``.
+        {batch_options}
 
         Returns
         -------
@@ -357,16 +294,14 @@ class TinferFrameAccessor:
         >>> m.comparison, m.n_tests, m.estimate.round(2).tolist()
         ('new minus old', 2, [4.0, 2.33])
         """
-        from ._compare import compare_frame
-
         return compare_frame(
             self._obj,
             columns,
             by,
             within,
             groups=groups,
-            null=null,
             paired=paired,
+            null=null,
             adjust=adjust,
             rate=rate,
             level=level,
@@ -389,7 +324,7 @@ class TinferSeriesAccessor:
         side: str = "two-sided",
         level: float = 0.95,
         units: str | None = None,
-        margin: float | tuple[float, float] | None = None,
+        margin: Margin = None,
         margin_units: str = "raw",
         worse: str | None = None,
         superior: bool = False,
@@ -406,21 +341,10 @@ class TinferSeriesAccessor:
         """
         name = "value" if self._obj.name is None else str(self._obj.name)
         what = f"Series {name!r}"
-        sample = _frames.finite(_frames.to_float(self._obj, what), name, what)
-        return _one_sample(
-            sample,
-            name,
-            func="one_sample",
-            null=null,
-            side=side,
-            level=level,
-            units=units,
-            margin=margin,
-            margin_units=margin_units,
-            worse=worse,
-            superior=superior,
-            trim=trim,
-        )
+        sample = finite(to_float(self._obj, what), name, what)
+        opts = dict(null=null, side=side, level=level, units=units, trim=trim)
+        opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        return ttest.one_sample(sample, name, func="one_sample", **opts)
 
 
 __all__ = ["TinferFrameAccessor", "TinferSeriesAccessor"]

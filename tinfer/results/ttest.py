@@ -1,139 +1,26 @@
-"""Result objects: frozen value objects holding numbers and words, never the caller's data.
+"""The result of one t procedure (:class:`TResult`) and its words.
 
-Display (HTML cards, charts, widgets) is added by :mod:`tinfer.display` on demand.
+A frozen value object holding numbers and words, and copies of the values it was computed
+from (read-only), never the caller's data. Built by :mod:`tinfer.analyses.ttest`; cards,
+charts and sliders come from :mod:`tinfer.display` on demand, inside the convenience methods.
 """
 
 from __future__ import annotations
 
 import dataclasses
-import datetime as _dt
-import hashlib
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
-from ._format import decimals_for, fmt_df, fmt_level, fmt_num, p_equals
-from .core.summary import Summary
+from ..core.summary import Summary
+from . import provenance
+from .equivalence import Equivalence
+from .format import decimals_for, fmt_df, fmt_level, fmt_num, p_equals
+from .parts import Effect, GroupStats
+from .words import interval_words
 
 DESIGNS = ("one-sample", "paired", "two-sample")
-
-
-@dataclass(frozen=True)
-class GroupStats:
-    """Descriptive statistics of one group (or of the paired differences)."""
-
-    label: str
-    n: int
-    n_missing: int
-    mean: float
-    sd: float
-    se: float
-
-
-@dataclass(frozen=True)
-class Effect:
-    """A standardised effect size with its confidence interval.
-
-    ``name`` is one of "Cohen's d" (one sample), "d_z" (paired differences) or
-    "Hedges' g" (two independent samples).
-    """
-
-    name: str
-    value: float
-    ci: tuple[float, float]
-    level: float
-
-    def __str__(self) -> str:
-        lo, hi = (fmt_num(round(v, 3), 3) if np.isfinite(v) else fmt_num(v) for v in self.ci)
-        return f"{self.name} = {self.value:.3f} ({fmt_level(self.level)} CI {lo} to {hi})"
-
-
-@dataclass(frozen=True)
-class OneSidedTest:
-    """One of the one-sided t tests behind an equivalence or non-inferiority claim.
-
-    ``bound`` is the band limit tested (raw units); ``null_hypothesis`` says in words
-    what the test rejects when ``p`` is small.
-    """
-
-    bound: float
-    null_hypothesis: str
-    t: float
-    df: float
-    p: float
-    log_p: float
-
-
-@dataclass(frozen=True)
-class Equivalence:
-    """An equivalence, non-inferiority or superiority-by-margin claim, tested by TOST.
-
-    Attributes
-    ----------
-    kind : str
-        "equivalence" (a band on both sides), "non-inferiority" or "superiority" (one side).
-    low, high : float
-        The band in raw units (absolute limits); one is infinite for a one-sided claim.
-    lower, upper : OneSidedTest or None
-        The test against ``low`` (null: true value at or below it) and against ``high``
-        (null: at or above it); ``None`` where that limit is infinite.
-    p, log_p : float
-        Overall p-value: the larger one-sided p-value.
-    ci, ci_level : tuple of float, float
-        The two-sided interval at ``1 - 2 alpha`` whose inclusion in the band is the
-        decision (for one-sided claims its finite limit is the one-sided ``1 - alpha`` bound).
-    alpha : float
-        Significance of each one-sided test, ``1 - level``.
-    decision : bool
-        True when the claim is shown at ``alpha``.
-    conclusion : str
-        The decision in words.
-    margin, margin_units, worse, superior
-        The margin keywords as given (offsets relative to ``null``), kept for recompute.
-    sd : float or None
-        The observed SD used to convert a standardised margin to raw units.
-    note : str
-        Words on the conversion of a standardised margin ("" for raw margins).
-    """
-
-    kind: str
-    low: float
-    high: float
-    lower: OneSidedTest | None
-    upper: OneSidedTest | None
-    p: float
-    log_p: float
-    ci: tuple[float, float]
-    ci_level: float
-    alpha: float
-    decision: bool
-    conclusion: str
-    margin: float | tuple[float, float]
-    margin_units: str = "raw"
-    worse: str | None = None
-    superior: bool = False
-    sd: float | None = None
-    note: str = ""
-
-    def to_dict(self) -> dict[str, Any]:
-        """The numbers as a flat dict, keys prefixed ``margin_``/``tost_``."""
-        nan = float("nan")
-        return {
-            "tost_kind": self.kind,
-            "margin_low": self.low,
-            "margin_high": self.high,
-            "tost_t_lower": self.lower.t if self.lower else nan,
-            "tost_p_lower": self.lower.p if self.lower else nan,
-            "tost_t_upper": self.upper.t if self.upper else nan,
-            "tost_p_upper": self.upper.p if self.upper else nan,
-            "tost_p": self.p,
-            "tost_ci_low": self.ci[0],
-            "tost_ci_high": self.ci[1],
-            "tost_ci_level": self.ci_level,
-            "tost_decision": self.decision,
-            "tost_conclusion": self.conclusion,
-        }
 
 
 @dataclass(frozen=True, eq=False)
@@ -197,13 +84,13 @@ class TResult:
     def null_hypothesis(self) -> str:
         """The null hypothesis in words (one-sided tests: the complement of the alternative)."""
         verb = {"two-sided": "equals", "upper": "is at most", "lower": "is at least"}
-        return f"the {self._subject()} {verb[self.side]} {self._fmt(self.null)}"
+        return f"the {self._subject()} {verb[self.side]} {self.fmt(self.null)}"
 
     @property
     def alternative(self) -> str:
         """The alternative hypothesis in words."""
         verb = {"two-sided": "differs from", "upper": "is greater than", "lower": "is less than"}
-        return f"the {self._subject()} {verb[self.side]} {self._fmt(self.null)}"
+        return f"the {self._subject()} {verb[self.side]} {self.fmt(self.null)}"
 
     @property
     def location(self) -> str:
@@ -222,7 +109,8 @@ class TResult:
         """Decimals used to print estimates: enough to show the SE to two digits."""
         return decimals_for(self.se)
 
-    def _fmt(self, x: float) -> str:
+    def fmt(self, x: float) -> str:
+        """A number of this result in its decimals, with the units when finite."""
         text = fmt_num(x, self.decimals)
         return f"{text} {self.units}" if self.units and np.isfinite(x) else text
 
@@ -233,26 +121,26 @@ class TResult:
 
     def headline(self) -> str:
         """One sentence: direction, estimate with its interval, and the verdict on ``null``."""
-        lo, hi = self.ci
-        if self.side == "two-sided":
-            ci = f"{fmt_level(self.level)} CI {self._fmt(lo)} to {self._fmt(hi)}"
-        elif self.side == "upper":
-            ci = f"{fmt_level(self.level)} lower bound {self._fmt(lo)}"
-        else:
-            ci = f"{fmt_level(self.level)} upper bound {self._fmt(hi)}"
         if self.design == "one-sample":
-            lead = f"The {self.location} of {self.variable} is {self._fmt(self.estimate)}"
+            lead = f"The {self.location} of {self.variable} is {self.fmt(self.estimate)}"
         elif self.design == "paired":
             lead = (
                 f"Paired differences in {self.variable} ({self.comparison}) average "
-                f"{self._fmt(self.estimate)}" + (f" ({self.location})" if self.trim else "")
+                f"{self.fmt(self.estimate)}" + (f" ({self.location})" if self.trim else "")
             )
         else:
             lead = (
                 f"The difference in {self.location} {self.variable}, {self.labels[0]} minus "
-                f"{self.labels[1]}, is {self._fmt(self.estimate)}"
+                f"{self.labels[1]}, is {self.fmt(self.estimate)}"
             )
-        target = self._fmt(self.null)
+        eq = self.equivalence
+        if eq is not None:
+            label = {"equivalence": "TOST"}.get(eq.kind, eq.kind)
+            return (
+                f"{lead} ({eq.interval_words(self.fmt)}); {eq.conclusion} "
+                f"({label} {p_equals(eq.p, eq.log_p)})."
+            )
+        target = self.fmt(self.null)
         if self.design != "one-sample" and self.null == 0:
             target = "no difference"
         verdict = (
@@ -260,16 +148,14 @@ class TResult:
             if self.significant
             else f"the data are consistent with {target}"
         )
-        eq = self.equivalence
-        if eq is not None:
-            from ._margin import interval_words
+        return f"{lead} ({self.interval_words(self.level)}); {verdict} " + (
+            f"({p_equals(self.p, self.log_p)})."
+        )
 
-            label = {"equivalence": "TOST"}.get(eq.kind, eq.kind)
-            return (
-                f"{lead} ({interval_words(eq, self._fmt)}); {eq.conclusion} "
-                f"({label} {p_equals(eq.p, eq.log_p)})."
-            )
-        return f"{lead} ({ci}); {verdict} ({p_equals(self.p, self.log_p)})."
+    def interval_words(self, level: float | None = None) -> str:
+        """The confidence interval in words, "95% CI 1.2 to 3.4" (without ``level``: "1.2 to
+        3.4"; a one-sided bound reads "95% lower bound 1.2" or "1.2 or more (one-sided)")."""
+        return interval_words(*self.ci, self.fmt, level)
 
     # ------------------------------------------------------------------ tables
     def to_dict(self) -> dict[str, Any]:
@@ -313,17 +199,7 @@ class TResult:
     @property
     def fingerprint(self) -> str:
         """A short hash of the exact values used (or the summaries, for published numbers)."""
-        h = hashlib.blake2b(digest_size=8)
-        h.update(self.design.encode())
-        if self.samples is not None:
-            for arr in self.samples:
-                h.update(np.ascontiguousarray(arr, dtype=np.float64).tobytes())
-                h.update(b"|")
-        else:
-            for s in self.summaries:
-                for v in (s.n, s.mean, s.ssd):
-                    h.update(np.ascontiguousarray(v, dtype=np.float64).tobytes())
-        return h.hexdigest()
+        return provenance.fingerprint(self.design, self.samples, self.summaries)
 
     # ------------------------------------------------------------------ recompute
     def recompute(self, **changes: Any) -> TResult:
@@ -331,7 +207,7 @@ class TResult:
 
         Works from the stored summaries; the DataFrame is not read again.
         """
-        from ._build import rebuild
+        from ..analyses.ttest import rebuild
 
         return rebuild(self, **changes)
 
@@ -352,7 +228,7 @@ class TResult:
         >>> d.shapes[0].n_outliers, "trim=0.2" in d.advice
         (1, True)
         """
-        from ._diagnostics import diagnose
+        from ..analyses.diagnostics import diagnose
 
         return diagnose(self)
 
@@ -375,9 +251,12 @@ class TResult:
         >>> b.seed, b.interval[0] < 3.86 < b.interval[1]
         (11, True)
         """
-        from ._diagnostics import bootstrap
+        from ..analyses.bootstrap import bootstrap
+        from ..display.progress import progress_bar
 
-        return bootstrap(self, n_resamples=n_resamples, seed=seed, level=level)
+        return bootstrap(
+            self, n_resamples=n_resamples, seed=seed, level=level, progress=progress_bar
+        )
 
     def explore(self):
         """Sliders for level, side and null (margin, trim where they apply), redrawn live.
@@ -393,7 +272,7 @@ class TResult:
         >>> ex.result.side, ex.result.ci[1]
         ('upper', inf)
         """
-        from .display.widgets import explore_result
+        from ..display.widgets import explore_result
 
         return explore_result(self)
 
@@ -412,7 +291,7 @@ class TResult:
         >>> round(r.sensitivity(0.8).effect, 3)
         1.129
         """
-        from ._plan import sensitivity_of
+        from ..analyses.plan import sensitivity_of
 
         return sensitivity_of(self, power=power)
 
@@ -439,7 +318,7 @@ class TResult:
         >>> r.plan(power=0.8, diff=1.0).n
         28
         """
-        from ._plan import follow_up
+        from ..analyses.plan import follow_up
 
         return follow_up(self, power, effect, diff=diff, level=level, side=side, ratio=ratio)
 
@@ -448,7 +327,7 @@ class TResult:
         lines = [f"{self.method}: {self.comparison}", self.headline()]
         lo, hi = self.ci
         lines.append(
-            f"  estimate {self._fmt(self.estimate)}   se {fmt_num(self.se, self.decimals + 1)}"
+            f"  estimate {self.fmt(self.estimate)}   se {fmt_num(self.se, self.decimals + 1)}"
             f"   {fmt_level(self.level)} CI [{fmt_num(lo, self.decimals)}, "
             f"{fmt_num(hi, self.decimals)}]"
         )
@@ -465,12 +344,11 @@ class TResult:
             )
         lines.append(f"  H0: {self.null_hypothesis}.  H1: {self.alternative}.")
         eq = self.equivalence
-        for test in (eq.lower, eq.upper) if eq is not None else ():
-            if test is not None:
-                lines.append(
-                    f"  one-sided test, H0 {test.null_hypothesis}: t = {test.t:.3f}, "
-                    f"{p_equals(test.p, test.log_p)}"
-                )
+        for _, test in eq.tests if eq is not None else ():
+            lines.append(
+                f"  one-sided test, H0 {test.null_hypothesis}: t = {test.t:.3f}, "
+                f"{p_equals(test.p, test.log_p)}"
+            )
         if eq is not None and eq.note:
             lines.append(f"  {eq.note}")
         lines.extend(f"  note: {w}" for w in self.warnings)
@@ -494,7 +372,7 @@ class TResult:
         >>> type(r.chart()).__name__
         'VConcatChart'
         """
-        from .display.charts import result_chart
+        from ..display.ttest import result_chart
 
         return result_chart(self, normal)
 
@@ -512,15 +390,11 @@ class TResult:
         >>> page.startswith('<div class="tinfer-card">') and "<script" not in page
         True
         """
-        from .display.render import html
+        from ..display.render import html
 
         return html(self, chart=chart)
 
     def _repr_mimebundle_(self, include=None, exclude=None):
-        from .display.render import mimebundle
+        from ..display.render import mimebundle
 
         return mimebundle(self)
-
-
-def now_iso() -> str:
-    return _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")

@@ -1,0 +1,34 @@
+"""Analyses: summaries and options -> result objects, one module per kind of analysis.
+
+No pandas reading (that is :mod:`tinfer.frames`) and no display (:mod:`tinfer.display`).
+The names below are the package's public face, used by :mod:`tinfer.frames` and
+:mod:`tinfer.scale`.
+"""
+
+from __future__ import annotations
+
+from .batch import check_options, from_cube, run_batch
+from .bootstrap import bootstrap
+from .diagnostics import diagnose
+from .equivalence import check_margin, equivalence_for
+from .from_summary import from_summary
+from .plan import follow_up, plan, replan, sensitivity_of
+from .ttest import build, group_stats, rebuild
+
+__all__ = [
+    "bootstrap",
+    "build",
+    "check_margin",
+    "check_options",
+    "diagnose",
+    "equivalence_for",
+    "follow_up",
+    "from_cube",
+    "from_summary",
+    "group_stats",
+    "plan",
+    "rebuild",
+    "replan",
+    "run_batch",
+    "sensitivity_of",
+]

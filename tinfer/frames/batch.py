@@ -1,0 +1,255 @@
+"""The DataFrame path of ``df.tinfer.compare``: rows -> per-group summaries -> a batch.
+
+The segment and arm columns become integer codes (``pandas.factorize``, or ``value - min``
+for compact integer columns), and :func:`tinfer.core.grouped.grouped_moments` builds every
+group's summary in a few ``numpy.bincount`` passes. The arrays, shaped
+``(metric, segment, arm)``, go to :func:`tinfer.analyses.from_cube`, which runs every test
+in one vectorised call. The caller's columns are never written to.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Hashable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from ..analyses import check_options, from_cube
+from ..core.grouped import grouped_moments
+from ..errors import ParameterError
+from ..results.batch import RESULT_COLUMNS, BatchResult
+from .columns import column, metric_values, reject_inf
+from .levels import as_list, choose_two, combine_codes, key_codes, py_value
+
+#: Up to this many levels of ``by``, every level gets its own column of group codes and the
+#: two compared levels are picked after counting (no remapping pass over the rows).
+FEW_LEVELS = 16
+#: The phrase naming a two-level comparison of a batch in messages.
+WHAT = "two-sample comparison"
+
+
+def check_result_names(keys: Sequence[Hashable], func: str) -> None:
+    """Refuse segment columns whose names clash with columns of the result table."""
+    taken = set(RESULT_COLUMNS) | {"n", "mean", "sd", "n_a", "n_b", "mean_a", "mean_b"}
+    taken |= {"sd_a", "sd_b"}
+    for k in keys:
+        if str(k) in taken:
+            raise ParameterError(
+                f"The 'within' parameter of {func} names a column {k!r} that clashes with a "
+                "column of the result table. Rename it first, e.g. df.rename(columns=...)."
+            )
+
+
+def metric_specs(columns, paired, func) -> list[tuple[str, tuple]]:
+    """(name, columns) per metric: ("x", ("x",)) or ("before minus after", (before, after))."""
+    if paired is not None:
+        if columns is not None:
+            raise ParameterError(
+                f"{func} takes value columns or paired=(first, second), not both. "
+                f"Got columns={columns!r} and paired={paired!r}."
+            )
+        pairs = [paired] if _is_pair_of_labels(paired) else list(paired)
+        if not pairs or not all(_is_pair_of_labels(p) for p in pairs):
+            raise ParameterError(
+                f"The 'paired' parameter of {func} must be a pair of columns (first, second) "
+                f"or a list of such pairs. Got {paired!r} instead."
+            )
+        return [(f"{p[0]} minus {p[1]}", (p[0], p[1])) for p in pairs]
+    cols = as_list(columns)
+    if not cols:
+        raise ParameterError(
+            f"The 'columns' parameter of {func} must name one or more value columns. "
+            f"Got {columns!r} instead."
+        )
+    return [(str(c), (c,)) for c in cols]
+
+
+def _is_pair_of_labels(p) -> bool:
+    return (
+        isinstance(p, tuple | list)
+        and len(p) == 2
+        and not any(isinstance(v, tuple | list) for v in p)
+    )
+
+
+def choose_arms(levels: np.ndarray, present: np.ndarray, by, groups) -> tuple[int, int]:
+    """Indices into ``levels`` of the two compared levels among those ``present``."""
+    present_idx = np.flatnonzero(present)
+    first, second = choose_two([levels[i] for i in present_idx], by, groups, WHAT)
+    return int(present_idx[first]), int(present_idx[second])
+
+
+@dataclass
+class _Segments:
+    """Integer segment codes of the rows (-1 where a key is missing) and their levels."""
+
+    codes: np.ndarray
+    size: int
+    missing: bool
+    levels: list[np.ndarray]
+    radix_of: np.ndarray | None = None  # compact code -> mixed-radix code (sparse keys)
+
+    def values(self, keep: np.ndarray) -> list[tuple]:
+        """The key values of the kept segments (compact codes ``keep``)."""
+        if not self.levels:
+            return [()]
+        codes = keep if self.radix_of is None else self.radix_of[keep]
+        idx = np.unravel_index(codes, tuple(len(lv) for lv in self.levels))
+        cols = [np.asarray(lv)[i].tolist() for lv, i in zip(self.levels, idx, strict=True)]
+        return list(zip(*cols, strict=True))
+
+
+def _segments(df: pd.DataFrame, keys: list) -> _Segments:
+    """Segment codes of the rows (the caller's compact integer column may be shared)."""
+    if not keys:
+        return _Segments(np.zeros(len(df), dtype=np.intp), 1, False, [])
+    parts = [key_codes(df[k]) for k in keys]
+    levels = [p[1] for p in parts]
+    seg, _ = combine_codes([p[0] for p in parts], [len(lv) for lv in levels])
+    out = _Segments(seg, math.prod(len(lv) for lv in levels), any(p[2] for p in parts), levels)
+    if out.size > 4 * max(len(df), 1) + 1_000_000:  # sparse product of many keys
+        valid = seg >= 0
+        compact, uniq = pd.factorize(seg[valid], sort=True)
+        out.codes = np.where(valid, 0, -1)
+        out.codes[valid] = compact
+        out.radix_of = np.asarray(uniq, dtype=np.intp)
+        out.size = len(uniq)
+    return out
+
+
+@dataclass
+class _Arms:
+    """Group codes (segment * width + arm) and how the two compared arms are found."""
+
+    codes: np.ndarray
+    width: int
+    may_miss: bool
+    levels: np.ndarray | None = None
+    chosen: tuple[int, int] | None = None  # known before counting (many levels)
+
+
+def _arms(df: pd.DataFrame, by, groups, seg: _Segments) -> _Arms:
+    """Group codes for a two-sample batch, one column per level of ``by`` when few."""
+    by_codes, levels, by_missing = key_codes(column(df, by))
+    chosen = None
+    if len(levels) <= FEW_LEVELS:
+        width, arm = len(levels), by_codes
+    else:
+        present = np.bincount(by_codes[by_codes >= 0], minlength=len(levels)) > 0
+        chosen = choose_arms(levels, present, by, groups)
+        lut = np.full(len(levels) + 1, -1, dtype=np.intp)
+        lut[chosen[0]], lut[chosen[1]] = 0, 1
+        arm = lut[by_codes]  # by_codes == -1 picks the last entry, -1
+        width, by_missing = 2, True
+    g = np.multiply(seg.codes, width, dtype=np.intp)
+    g += arm
+    if seg.missing or by_missing:
+        g[(seg.codes < 0) | (arm < 0)] = -1
+    return _Arms(g, width, seg.missing or by_missing, levels, chosen)
+
+
+def _moments(df, specs, g, key_ok, counts, n_groups) -> tuple[np.ndarray, ...]:
+    """n, mean, mean_lo, ssd and missing counts per (metric, group), in bincount passes."""
+    shape = (len(specs), n_groups)
+    n, mean, ssd, lo = (np.empty(shape) for _ in range(4))
+    miss = np.zeros(shape)
+    g_ok = g if key_ok is None else g[key_ok]
+    for j, (_, cols) in enumerate(specs):
+        x = metric_values(df, cols, check_inf=False)
+        xs = x if key_ok is None else x[key_ok]
+        s = grouped_moments(xs, g_ok, n_groups, counts=counts, finite_only=True)
+        if s is None:  # missing values: mask them and count them per group
+            reject_inf([metric_values(df, (c,), check_inf=False) for c in cols], cols)
+            fin = np.isfinite(x)
+            use = fin if key_ok is None else fin & key_ok
+            s = grouped_moments(x[use], g[use], n_groups)
+            lost = ~fin if key_ok is None else ~fin & key_ok
+            miss[j] = np.bincount(g[lost], minlength=n_groups)
+        n[j], mean[j], lo[j], ssd[j] = s
+    return n, mean, lo, ssd, miss
+
+
+def compare_frame(
+    df: pd.DataFrame,
+    columns=None,
+    by: Hashable | None = None,
+    within=None,
+    *,
+    groups: Sequence | None = None,
+    paired=None,
+    func: str = "compare",
+    **opts,
+) -> BatchResult:
+    """The DataFrame path of ``df.tinfer.compare`` (see its docstring for the options)."""
+    options = check_options(func, **opts)
+    specs = metric_specs(columns, paired, func)
+    keys = as_list(within)
+    for k in keys:
+        column(df, k)
+    check_result_names(keys, func)
+    if by is not None and paired is not None:
+        raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
+    design = "paired" if paired is not None else ("two-sample" if by is not None else "one-sample")
+    notes: list[str] = []
+    seg = _segments(df, keys)
+    if design == "two-sample":
+        arms = _arms(df, by, groups, seg)
+    else:
+        arms = _Arms(seg.codes, 1, seg.missing)
+    n_groups = seg.size * arms.width
+    key_ok = arms.codes >= 0 if arms.may_miss else None
+    if key_ok is not None and key_ok.all():
+        key_ok = None
+    if key_ok is not None:
+        what = "a missing segment key"
+        if design == "two-sample":
+            what = f"a missing segment key or {by!r} value, or outside the two compared groups,"
+        notes.append(f"{int((~key_ok).sum())} row(s) with {what} were not used.")
+    g_ok = arms.codes if key_ok is None else arms.codes[key_ok]
+    counts = np.bincount(g_ok, minlength=n_groups)
+    by_seg = counts.reshape(seg.size, arms.width)
+    if design == "two-sample":
+        cols, labels = _compared(arms, by_seg, by, groups, notes)
+    else:
+        cols = [0]
+        names = specs[0][1] if paired is not None else ("mean", options["null"])
+        labels = tuple(str(v) for v in names)
+    n, mean, lo, ssd, miss = _moments(df, specs, arms.codes, key_ok, counts, n_groups)
+    if miss.sum():
+        notes.append(f"{int(miss.sum())} missing value(s) dropped.")
+    keep = np.flatnonzero(by_seg[:, cols].sum(axis=1) > 0)  # segments with compared rows
+
+    def pick(arr):
+        return arr.reshape(len(specs), seg.size, arms.width)[:, keep][:, :, cols]
+
+    return from_cube(
+        design,
+        pick(n),
+        pick(mean),
+        pick(ssd),
+        present=None,
+        segments=seg.values(keep),
+        keys=[str(k) for k in keys],
+        metrics=[s[0] for s in specs],
+        labels=labels,
+        options=options,
+        n_missing=pick(miss),
+        notes=notes,
+        mean_lo=pick(lo),
+    )
+
+
+def _compared(arms: _Arms, by_seg: np.ndarray, by, groups, notes: list[str]):
+    """The columns of the two compared arms and their labels; notes rows in other levels."""
+    if arms.chosen is None:
+        chosen = choose_arms(arms.levels, by_seg.sum(axis=0) > 0, by, groups)
+        cols = list(chosen)
+        others = int(by_seg.sum() - by_seg[:, cols].sum())
+        if others:
+            notes.append(f"{others} row(s) in other levels of {by!r} were not used.")
+    else:
+        chosen, cols = arms.chosen, [0, 1]
+    labels = tuple(str(py_value(arms.levels[i])) for i in chosen)
+    return cols, labels

@@ -1,0 +1,33 @@
+"""Result types: frozen value objects holding numbers and words, one module per analysis.
+
+A result never holds the caller's DataFrame or views of its arrays (values it keeps are
+read-only copies) and renders nothing when it is built. Its convenience methods (``chart``,
+``explore``, ``check``, ``plan``, ``recompute``, ...) reach :mod:`tinfer.display` and
+:mod:`tinfer.analyses` lazily, inside the method; nothing else here imports upward.
+"""
+
+from __future__ import annotations
+
+from .batch import BatchResult
+from .bootstrap import BootstrapCheck
+from .diagnostics import Diagnostics
+from .equivalence import Equivalence, OneSidedTest
+from .parts import Effect, GroupStats
+from .plan import PlanResult
+from .tdist import TDistribution, TDistView, tdist
+from .ttest import TResult
+
+__all__ = [
+    "BatchResult",
+    "BootstrapCheck",
+    "Diagnostics",
+    "Effect",
+    "Equivalence",
+    "GroupStats",
+    "OneSidedTest",
+    "PlanResult",
+    "TDistView",
+    "TDistribution",
+    "TResult",
+    "tdist",
+]
