@@ -186,7 +186,9 @@ def test_spec_size_independent_of_n():
         sizes.append(len(text))
         rows.append(sum(len(d) for d in spec.get("datasets", {}).values()))
         assert len(text) < 30_000
-    assert rows[0] == pytest.approx(rows[1], abs=2)
+    # the grid has 401 points either way; the few more are the marked values (observed t,
+    # critical values) and their label rows, which depend on where t falls, not on n
+    assert 401 <= min(rows) and rows[0] == pytest.approx(rows[1], abs=8)
     assert abs(sizes[0] - sizes[1]) < 1_000
 
 

@@ -210,3 +210,17 @@ def test_warning_free_merge():
         warnings.simplefilter("error", RuntimeWarning)
         m = dd.from_pandas(df, npartitions=4).tinfer.compare("v", within="g", null=2.0)
     assert_same(m, df.tinfer.compare("v", within="g", null=2.0), FIELDS)
+
+
+def test_all_empty_partitions_give_a_clear_error():
+    """A filter that leaves every partition empty gives a clear error, never the internal
+    summary columns' names."""
+    ddf = dd.from_pandas(kiln(3), npartitions=3)
+    empty = ddf[ddf.strength > 1e9]
+    for run in (
+        lambda: empty.tinfer.compare("strength", by="glaze"),
+        lambda: empty.tinfer.compare("strength", within="kiln"),
+    ):
+        with pytest.raises(tinfer.DataError, match="every partition is empty") as info:
+            run()
+        assert "__" not in str(info.value)

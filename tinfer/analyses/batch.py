@@ -79,7 +79,7 @@ def run_batch(
     sa = tuple(np.where(bad, v, x) for v, x in zip(stand_in, arm_a, strict=True))
     sb = tuple(np.where(bad, v, x) for v, x in zip(stand_in, arm_b, strict=True)) if two else None
     opts = (options["null"], options["level"], options["side"], options["pooled"], False)
-    c, add_back = procedures.shifted(design, sa, sb, *opts)
+    c = procedures.rows(design, sa, sb, *opts)
     if two:
         method = METHODS["pooled" if options["pooled"] else "welch"]
         comparison = f"{labels[0]} minus {labels[1]}"
@@ -112,14 +112,14 @@ def run_batch(
         row_segment=frozen(np.asarray(row_segment, dtype=np.intp)),
         row_metric=frozen(np.asarray(row_metric, dtype=np.intp)),
         **arrays,
-        estimate=clean(c.estimate + add_back),
+        estimate=clean(c.estimate),
         se=clean(c.se),
         t=clean(c.t),
         df=clean(c.df),
         p=p,
         log_p=clean(c.log_p),
-        ci_low=clean(c.ci_low + add_back),
-        ci_high=clean(c.ci_high + add_back),
+        ci_low=clean(c.ci_low),
+        ci_high=clean(c.ci_high),
         p_adjusted=p_adj,
         discovery=disc,
         effect=clean(c.effect),
@@ -162,7 +162,8 @@ def _untested_note(bad, row_segment, row_metric, segments, keys, metrics) -> str
     where = ", ".join(f"{k}={v}" for k, v in zip(keys, seg, strict=True)) or "all rows"
     return (
         f"{int(bad.sum())} of {bad.size} comparison(s) could not be tested (fewer than 2 "
-        f"values in an arm, or no spread) and have NaN results; the first is "
+        "values in an arm, no spread, or values beyond double precision) and have NaN "
+        "results; the first is "
         f"{metrics[row_metric[first]]} in {where}. They are left out of the multiplicity "
         "adjustment."
     )

@@ -10,6 +10,7 @@ from collections.abc import Sequence
 
 import numpy as np
 
+from ..checks import SUMMARY_RULES, fail, is_real, summary_problem
 from ..core.summary import Summary
 from ..docstrings import fill_params
 from ..errors import ParameterError
@@ -87,8 +88,7 @@ def from_summary(
     opts = dict(func=func, null=null, side=side, level=level, units=units, variable=variable)
     opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
     if not any(shapes):
-        for name, v in (("n", n), ("mean", mean), ("sd", sd)):
-            _check_number(name, v, func)
+        _check_numbers(n, mean, sd, func)
         s = Summary.from_moments(float(n), float(mean), float(sd))
         if paired:
             labs = _two_labels(labels, func)
@@ -100,8 +100,8 @@ def from_summary(
                 f"The {name!r} parameter of from_summary must be a number or a pair. "
                 f"Got {v!r} instead."
             )
-        for item in v:
-            _check_number(name, item, func)
+    for k in range(2):
+        _check_numbers(n[k], mean[k], sd[k], func)
     if paired:
         raise ParameterError(
             "The 'paired' parameter of from_summary needs the summary of the differences "
@@ -125,11 +125,12 @@ def _two_labels(labels, func) -> tuple[str, ...]:
     return tuple(labels)
 
 
-def _check_number(name, v, func) -> None:
-    ok = isinstance(v, int | float | np.integer | np.floating) and not isinstance(v, bool)
-    bad_n = name == "n" and ok and np.isfinite(v) and (v < 1 or v != int(v))
-    if not ok or not np.isfinite(v) or (name == "sd" and v < 0) or bad_n:
-        what = {"n": "a whole count of at least 1", "sd": "a non-negative number"}.get(
-            name, "a finite number"
-        )
-        raise ParameterError(f"The {name!r} parameter of {func} must be {what}. Got {v!r} instead.")
+def _check_numbers(n, mean, sd, func) -> None:
+    """One group's n, mean and SD: numbers that pass the one validation of summaries."""
+    for name, v in (("n", n), ("mean", mean), ("sd", sd)):
+        if not is_real(v):
+            raise fail(name, func, SUMMARY_RULES[name].format(min_n=1), v)
+    problem = summary_problem(n, mean, sd, min_n=1)
+    if problem is not None:
+        name, _, _, rule = problem
+        raise fail(name, func, rule, {"n": n, "mean": mean, "sd": sd}[name])

@@ -80,18 +80,21 @@ def grouped_moments(
     if counts is None:
         counts = np.bincount(c, minlength=n_groups)
     n = counts.astype(np.float64)
-    sums = np.bincount(c, weights=x, minlength=n_groups)
+    # values near 1e308 overflow the sums: the groups come out non-finite, and callers
+    # report them as untestable, so numpy need not warn
+    with np.errstate(over="ignore", invalid="ignore"):
+        sums = np.bincount(c, weights=x, minlength=n_groups)
     if finite_only and not np.isfinite(sums).all():
         return None  # some value is NaN or infinite (or a sum overflowed): caller masks
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         m0 = np.where(n > 0, sums / np.where(n > 0, n, 1.0), 0.0)
-    dev = np.take(m0, c)
-    np.subtract(x, dev, out=dev)
-    s1 = np.bincount(c, weights=dev, minlength=n_groups)
-    np.multiply(dev, dev, out=dev)
-    s2 = np.bincount(c, weights=dev, minlength=n_groups)
+        dev = np.take(m0, c)
+        np.subtract(x, dev, out=dev)
+        s1 = np.bincount(c, weights=dev, minlength=n_groups)
+        np.multiply(dev, dev, out=dev)
+        s2 = np.bincount(c, weights=dev, minlength=n_groups)
     del dev
-    with np.errstate(invalid="ignore", divide="ignore"):
+    with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
         corr = np.where(n > 0, s1 / np.where(n > 0, n, 1.0), 0.0)
         mean = np.where(n > 0, m0 + corr, np.nan)
         mean_lo = np.where(n > 0, (m0 - mean) + corr, 0.0)  # exact remainder (Fast2Sum)

@@ -88,17 +88,18 @@ def one_sample(
     """
     df = s.n - 1.0
     se = s.se
-    # mean - null with the mean's low part, so that means near 1e9 keep their digits; the
-    # test runs on the shifted estimate and null is added back to the interval
+    # mean - null with the mean's low part, so that means near 1e9 keep their digits in t;
+    # the interval is built around the mean itself, so that a null far from the data (1e12
+    # against values near 10) cannot cost the interval its digits
     shifted = (s.mean - null) + _lo(s)
     with np.errstate(divide="ignore", invalid="ignore"):
         t_eff = shifted / se
     c = finish(
         shifted, se, df, 0.0, level, side, t_eff, df, 1.0 / np.sqrt(s.n), effect_ci=effect_ci
     )
-    return replace(
-        c, estimate=np.asarray(s.mean, float), ci_low=c.ci_low + null, ci_high=c.ci_high + null
-    )
+    estimate = np.asarray(s.mean, float)
+    lo, hi = t_interval(estimate + _lo(s), se, df, level, side)
+    return replace(c, estimate=estimate, ci_low=lo, ci_high=hi)
 
 
 def _lo(s: Summary):
@@ -152,29 +153,25 @@ def two_sample(
     )
 
 
-def shifted(design: str, a, b, null, level, side: str, pooled: bool, effect_ci: bool):
+def rows(design: str, a, b, null, level, side: str, pooled: bool, effect_ci: bool) -> Computed:
     """Run the procedure for ``design`` on many rows of double-double summaries.
 
     ``a`` and ``b`` are ``(n, mean, mean_lo, ssd)`` tuples of arrays (``b`` is None for
-    one-sample and paired designs). The t procedures only see differences of means, so each
-    row is shifted by a constant first: by arm b's mean (two samples) or by ``null`` (one
-    sample). ``(mean_a - mean_b) + (lo_a - lo_b)`` then carries a difference of means near
-    1e9 to full precision. Returns the :class:`Computed` and the amount to add back to
-    estimates and interval limits.
+    one-sample and paired designs). The low parts of the means enter the differences of
+    means that the procedures take (``mean - null``, ``mean_a - mean_b``), so differences of
+    means near 1e9 keep their digits.
 
     Examples
     --------
     >>> one = (np.array([3.0]), np.array([1e9 + 2]), np.array([0.0]), np.array([2.0]))
-    >>> c, add = shifted("one-sample", one, None, 1e9, 0.95, "two-sided", False, False)
-    >>> float(c.estimate[0] + add) - 1e9, round(float(c.t[0]), 12)
+    >>> c = rows("one-sample", one, None, 1e9, 0.95, "two-sided", False, False)
+    >>> float(c.estimate[0]) - 1e9, round(float(c.t[0]), 12)
     (2.0, 3.464101615138)
     """
     n_a, hi_a, lo_a, ssd_a = a
-    opts = dict(level=level, side=side, effect_ci=effect_ci)
+    opts = dict(null=null, level=level, side=side, effect_ci=effect_ci)
+    sa = Summary(n_a, hi_a, ssd_a, lo_a)
     if design == "two-sample":
         n_b, hi_b, lo_b, ssd_b = b
-        sa = Summary(n_a, (hi_a - hi_b) + (lo_a - lo_b), ssd_a)
-        sb = Summary(n_b, np.zeros_like(hi_b), ssd_b)
-        return two_sample(sa, sb, null=null, pooled=pooled, **opts), 0.0
-    sa = Summary(n_a, (hi_a - null) + lo_a, ssd_a)
-    return one_sample(sa, null=0.0, **opts), null
+        return two_sample(sa, Summary(n_b, hi_b, ssd_b, lo_b), pooled=pooled, **opts)
+    return one_sample(sa, **opts)

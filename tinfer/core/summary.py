@@ -46,14 +46,15 @@ class Summary:
         if x.size == 0:  # no values (all missing): callers report it, numpy need not warn
             nan = np.asarray(np.nan)
             return cls(np.asarray(0.0), nan, np.asarray(0.0), np.asarray(0.0))
-        m0 = x.mean()
-        dev = x - m0
-        s1 = dev.sum()
-        with np.errstate(over="ignore", under="ignore"):  # callers check the ssd's range
+        with np.errstate(over="ignore", invalid="ignore"):  # callers check the range
+            m0 = x.mean()
+            dev = x - m0
+            s1 = dev.sum()
+        with np.errstate(over="ignore", under="ignore", invalid="ignore"):
             corr = s1 / x.size
             ssd = max(dev @ dev - s1 * corr, 0.0)
-        mean = m0 + corr
-        lo = (m0 - mean) + corr  # exact remainder (Fast2Sum: |corr| is tiny next to m0)
+            mean = m0 + corr
+            lo = (m0 - mean) + corr  # exact remainder (Fast2Sum: |corr| is tiny next to m0)
         return cls(np.asarray(float(x.size)), np.asarray(mean), np.asarray(ssd), np.asarray(lo))
 
     @classmethod

@@ -14,7 +14,8 @@ import numpy as np
 from ..errors import ParameterError
 from ..results.batch import HEADERS, BatchResult
 from ..results.format import fmt_level, fmt_num, fmt_p
-from .charts import altair
+from .charts import altair, finish
+from .clean import label
 from .html import altair_block, card_start, data_table, esc, notes, provenance, version_item, wrap
 from .render import card
 
@@ -118,10 +119,10 @@ def forest_rows(
     multi = len(r.metrics) > 1 and metric is None
     rows = []
     for rank, i in enumerate(shown, start=start + 1):
-        label = seg[i] + (f" · {r.metrics[r.row_metric[i]]}" if multi else "")
+        text = seg[i] + (f" · {r.metrics[r.row_metric[i]]}" if multi else "")
         rows.append(
             {
-                "row": f"{rank}. {label}",
+                "row": f"{rank}. {label(text)}",
                 "estimate": float(r.estimate[i]),
                 "low": _finite_or_none(r.ci_low[i]),
                 "high": _finite_or_none(r.ci_high[i]),
@@ -153,9 +154,9 @@ def forest_chart(r: BatchResult, top: int = 30, page: int | None = None):
     """
     alt = altair()
     if len(r.metrics) == 1:
-        return _forest_panel(alt, r, top, page, None)
+        return finish(_forest_panel(alt, r, top, page, None))
     panels = [_forest_panel(alt, r, top, page, m) for m in r.metrics]
-    return alt.vconcat(*panels).resolve_scale(x="independent", y="independent")
+    return finish(alt.vconcat(*panels).resolve_scale(x="independent", y="independent"))
 
 
 def _forest_panel(alt, r: BatchResult, top: int, page: int | None, metric: str | None):
@@ -170,7 +171,7 @@ def _forest_panel(alt, r: BatchResult, top: int, page: int | None, metric: str |
     )
     tip = ["row:N", "estimate:Q", "low:Q", "high:Q", "p:N", "p_adjusted:N"]
     bars = base.mark_rule().encode(
-        x=alt.X("low:Q", title=f"{metric or 'estimate'} ({r.comparison})"),
+        x=alt.X("low:Q", title=label(f"{metric or 'estimate'} ({r.comparison})")),
         x2="high:Q",
         y=y,
         color=colour,
@@ -189,7 +190,7 @@ def _forest_panel(alt, r: BatchResult, top: int, page: int | None, metric: str |
         k = r.metrics.index(metric)
         mine = r.testable & (r.row_metric == k)
         heading = (
-            f"{metric}: {int((r.discovery & mine).sum()):,} of {int(mine.sum()):,} "
+            f"{label(metric)}: {int((r.discovery & mine).sum()):,} of {int(mine.sum()):,} "
             "comparisons are discoveries"
         )
     title = alt.TitleParams(
@@ -236,4 +237,4 @@ def p_histogram(r: BatchResult, bins: int = 20):
         subtitle=["dashed line: the flat height expected if no null hypothesis were false"],
         anchor="start",
     )
-    return (bars + level).properties(width=420, height=180, title=title)
+    return finish((bars + level).properties(width=420, height=180, title=title))

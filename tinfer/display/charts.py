@@ -15,6 +15,7 @@ import math
 from typing import Any
 
 from ..optional import require
+from .clean import clean_spec
 
 WIDTH = 400
 HEIGHT = 170
@@ -41,14 +42,38 @@ def altair():
 
 
 def to_altair(spec: dict[str, Any]):
-    """A Vega-Lite dict as the matching Altair chart object (not validated: our own specs)."""
-    alt = altair()
-    if "mark" in spec:
-        return alt.Chart.from_dict(spec, validate=False)
-    for key, cls in (("vconcat", alt.VConcatChart), ("layer", alt.LayerChart)):
+    """A Vega-Lite dict as the matching Altair chart object, its text made safe to render
+    (:func:`tinfer.display.clean.clean_spec`); not validated: our own specs."""
+    return _build(altair(), clean_spec(spec))
+
+
+def _build(alt, spec: dict[str, Any]):
+    """Altair objects around the dict's own parts (no schema walk: ``from_dict`` resolves
+    every nested object against the schema, which costs about 100 times as much)."""
+    kinds = (
+        ("layer", alt.LayerChart),
+        ("vconcat", alt.VConcatChart),
+        ("hconcat", alt.HConcatChart),
+        ("concat", alt.ConcatChart),
+    )
+    for key, cls in kinds:
         if key in spec:
-            return cls.from_dict(spec, validate=False)
-    raise ValueError("unexpected chart spec")  # pragma: no cover
+            rest = {k: v for k, v in spec.items() if k != key}
+            return cls(**{key: [_build(alt, s) for s in spec[key]]}, **rest)
+    unit = dict(spec)
+    if "encoding" in unit:
+        unit["encoding"] = alt.FacetedEncoding(**unit["encoding"])
+    return alt.Chart(**unit)
+
+
+def finish(chart):
+    """An Altair chart built from users' labels, returned with every text safe to render.
+
+    The chart itself when nothing needed cleaning, else the cleaned copy.
+    """
+    spec = chart.to_dict(validate=False)
+    cleaned = clean_spec(spec)
+    return chart if cleaned == spec else to_altair(cleaned)
 
 
 def config() -> dict[str, Any]:
@@ -143,7 +168,7 @@ def card_spec(chart_or_spec) -> dict[str, Any]:
 
 # --------------------------------------------------------------------------- rendering
 def to_svg(chart_or_spec) -> str:
-    """Render a chart (or a Vega-Lite dict) to SVG with vl-convert, offline.
+    """Render a chart (or a Vega-Lite dict) to SVG with vl-convert, offline, its text cleaned.
 
     External data requests are refused (``allowed_base_urls=[]``); the charts hold inline data
     only, so no network is needed. Text is set in the system font stack :data:`FONT`, so no
@@ -154,7 +179,7 @@ def to_svg(chart_or_spec) -> str:
     spec = (
         chart_or_spec if isinstance(chart_or_spec, dict) else chart_or_spec.to_dict(validate=False)
     )
-    return _svg(json.dumps(spec, sort_keys=True, allow_nan=False))
+    return _svg(json.dumps(clean_spec(spec), sort_keys=True, allow_nan=False))
 
 
 SVG_CACHE_SIZE = 16

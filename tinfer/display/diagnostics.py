@@ -16,7 +16,8 @@ import numpy as np
 from ..core.diagnostics import HAMPEL_K, MAX_LISTED
 from ..results.diagnostics import MAX_POINTS, Diagnostics
 from ..results.format import fmt_num
-from .charts import altair
+from .charts import altair, finish
+from .clean import label
 from .html import (
     altair_block,
     card_start,
@@ -129,11 +130,19 @@ def _flag_color(alt):
     )
 
 
+def names(d: Diagnostics) -> list[str]:
+    """The samples' labels as the charts show them: visible, short, and distinct."""
+    out = [label(s.label, 30) for s in d.shapes]
+    if len(set(out)) < len(out):  # two labels that read alike once shortened
+        out = [f"{k + 1}. {n}" for k, n in enumerate(out)]
+    return out
+
+
 def _thin_note(d: Diagnostics, what: str) -> list[str]:
-    big = [s for s, t in zip(d.shapes, d.thinned, strict=True) if t]
+    big = [n for n, t in zip(names(d), d.thinned, strict=True) if t]
     if not big:
         return []
-    return [f"{what} (n above {MAX_POINTS} in " + ", ".join(s.label for s in big) + ")"]
+    return [f"{what} (n above {MAX_POINTS} in " + ", ".join(big) + ")"]
 
 
 def qq_chart(d: Diagnostics):
@@ -142,12 +151,14 @@ def qq_chart(d: Diagnostics):
     import pandas as pd
 
     pts, ends = [], []
-    for s, (z, x), (slope, icpt) in zip(d.shapes, d.qq, d.qq_lines, strict=True):
+    shown = names(d)
+    for k, (s, (z, x), (slope, icpt)) in enumerate(zip(d.shapes, d.qq, d.qq_lines, strict=True)):
         far = np.abs(x - s.median) > HAMPEL_K * s.mad_sd if s.mad_sd > 0 else np.zeros(x.size, bool)
         pts.append(
             pd.DataFrame(
                 {
-                    "sample": s.label,
+                    "k": k,
+                    "sample": shown[k],
                     "normal quantile": rounded(z),
                     "value": rounded(x),
                     "flag": np.where(far, "outlier", "value"),
@@ -158,7 +169,7 @@ def qq_chart(d: Diagnostics):
         ends.append(
             pd.DataFrame(
                 {
-                    "sample": s.label,
+                    "k": k,
                     "normal quantile": rounded(z_ends),
                     "value": rounded(icpt + slope * z_ends),
                 }
@@ -169,7 +180,7 @@ def qq_chart(d: Diagnostics):
         .mark_circle(size=22, opacity=0.75)
         .encode(
             x=alt.X("normal quantile:Q", title="normal quantile"),
-            y=alt.Y("value:Q", title=d.variable, scale=alt.Scale(zero=False)),
+            y=alt.Y("value:Q", title=label(d.variable), scale=alt.Scale(zero=False)),
             color=_flag_color(alt),
             tooltip=["sample:N", "value:Q", "flag:N"],
         )
@@ -182,15 +193,17 @@ def qq_chart(d: Diagnostics):
     sub = ["points near the dashed line (through the quartiles) fit a normal shape"]
     sub += _thin_note(d, "evenly spaced order statistics shown, 250 per sample")
     charts = []
-    for s in d.shapes:
-        keep = alt.datum["sample"] == s.label
+    for k, name in enumerate(shown):
+        keep = alt.datum["k"] == k
         charts.append(
             alt.layer(points.transform_filter(keep), line.transform_filter(keep)).properties(
-                width=220, height=200, title=s.label
+                width=220, height=200, title=name
             )
         )
-    return alt.hconcat(*charts).properties(
-        title=alt.TitleParams("Normal Q-Q plot", subtitle=sub, anchor="start")
+    return finish(
+        alt.hconcat(*charts).properties(
+            title=alt.TitleParams("Normal Q-Q plot", subtitle=sub, anchor="start")
+        )
     )
 
 
@@ -199,29 +212,32 @@ def box_chart(d: Diagnostics):
     alt = altair()
     import pandas as pd
 
+    shown = names(d)
     boxes = pd.DataFrame(
         [
             {
-                "sample": s.label,
+                "sample": name,
                 "q1": s.quartiles[0],
                 "median": s.quartiles[1],
                 "q3": s.quartiles[2],
                 "low": s.whiskers[0],
                 "high": s.whiskers[1],
             }
-            for s in d.shapes
+            for s, name in zip(d.shapes, shown, strict=True)
         ]
     )
     rows = []
-    for s, x, flags in zip(d.shapes, d.strip, d.strip_flags, strict=True):
+    for name, x, flags in zip(shown, d.strip, d.strip_flags, strict=True):
         for v, f in zip(rounded(x), flags, strict=True):
-            rows.append({"sample": s.label, "value": v, "flag": "outlier" if f else "value"})
+            rows.append({"sample": name, "value": v, "flag": "outlier" if f else "value"})
     pts = pd.DataFrame(rows, columns=["sample", "value", "flag"])
     y = alt.Y("sample:N", title=None)
     whisker = (
         alt.Chart(boxes)
         .mark_rule(color=MUTED)
-        .encode(y=y, x=alt.X("low:Q", title=d.variable, scale=alt.Scale(zero=False)), x2="high:Q")
+        .encode(
+            y=y, x=alt.X("low:Q", title=label(d.variable), scale=alt.Scale(zero=False)), x2="high:Q"
+        )
     )
     box = (
         alt.Chart(boxes).mark_bar(size=22, color=BOX, opacity=0.8).encode(y=y, x="q1:Q", x2="q3:Q")
@@ -239,10 +255,12 @@ def box_chart(d: Diagnostics):
     )
     sub = ["box: quartiles; whiskers: Tukey's 1.5 IQR; red: Hampel outliers"]
     sub += _thin_note(d, f"only flagged values drawn, at most the {MAX_LISTED} farthest per sample")
-    return alt.layer(whisker, box, mid, dots).properties(
-        width=460,
-        height=60 * len(d.shapes),
-        title=alt.TitleParams("Spread and outliers", subtitle=sub, anchor="start"),
+    return finish(
+        alt.layer(whisker, box, mid, dots).properties(
+            width=460,
+            height=60 * len(d.shapes),
+            title=alt.TitleParams("Spread and outliers", subtitle=sub, anchor="start"),
+        )
     )
 
 

@@ -22,6 +22,7 @@ from ..results.equivalence import level_words
 from ..results.format import fmt_df, fmt_num, fmt_p, p_equals
 from ..results.ttest import TResult
 from .charts import INK, STRIP_HEIGHT, WIDTH, config, to_altair
+from .clean import label
 from .density import clamp, density_panel, density_rows, half_width, mark, mark_label
 
 BAND = "#6a9f58"  # edge of the shaded band on the data scale (our own choice)
@@ -182,7 +183,7 @@ def band_panel(result: TResult) -> dict[str, Any]:
             "description": "estimate",
             "data": {"values": [point]},
             "mark": {"type": "point", "filled": True, "size": 70, "color": TOST_CI, "opacity": 1},
-            "encoding": {"x": {**x, "title": f"{result.comparison}{unit}"}},
+            "encoding": {"x": {**x, "title": label(f"{result.comparison}{unit}")}},
         },
         {
             "description": "estimate label",

@@ -38,11 +38,18 @@ w = require("ipywidgets", "interactive explorers")
 
 
 def slider(value: float, lo: float, hi: float, step: float, digits: int, description: str):
-    """A labelled FloatSlider that updates on release, in the explorers' common layout."""
+    """A labelled FloatSlider that updates on release, in the explorers' common layout.
+
+    The range widens to hold ``value``, so a result made with a level or trim beyond the
+    usual range starts where it was made instead of being clamped, with the digits it needs.
+    """
+    while digits < 6 and round(value, digits) != value:
+        digits += 1
+    step = min(step, 10.0**-digits)
     return w.FloatSlider(
         value=value,
-        min=lo,
-        max=hi,
+        min=min(lo, value),
+        max=max(hi, value),
         step=step,
         readout_format=f".{digits}f",
         description=description,

@@ -19,6 +19,7 @@ from collections.abc import Callable, Iterable, Sequence
 
 from ..results.provenance import VERSION
 from . import charts
+from .clean import visible
 
 
 def esc(value: object) -> str:
@@ -27,7 +28,7 @@ def esc(value: object) -> str:
     >>> esc('<script>alert("x")</script>')
     '&lt;script&gt;alert(&quot;x&quot;)&lt;/script&gt;'
     """
-    return _html.escape(str(value), quote=True)
+    return _html.escape(visible(str(value), keep_lines=True), quote=True)
 
 
 # --------------------------------------------------------------------------- building blocks
@@ -102,7 +103,7 @@ def chart_block(spec_fn: Callable[[], dict], label: str, wide: bool = False) -> 
     except Exception as exc:  # a broken chart must not hide the numbers
         return (
             f'<div class="{cls} tinfer-missing-chart">The chart could not be drawn '
-            f"({esc(type(exc).__name__)}: {esc(exc)}).</div>"
+            f"({esc(type(exc).__name__)}); every number is in the tables.</div>"
         )
     return f'<div class="{cls}" role="img" aria-label="{esc(label)}">{svg}</div>'
 

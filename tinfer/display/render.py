@@ -65,8 +65,8 @@ def mimebundle(obj: Any, text: str | None = None) -> dict[str, str]:
         bundle["text/html"] = html(obj)
     except Exception as exc:  # a broken card must not hide the numbers
         warnings.warn(
-            f"tinfer could not build the HTML card ({type(exc).__name__}: {exc}); "
-            "showing plain text.",
+            f"tinfer could not build the HTML card ({type(exc).__name__}: "
+            f"{str(exc).splitlines()[0][:200] if str(exc) else ''}); showing plain text.",
             RuntimeWarning,
             stacklevel=2,
         )

@@ -17,6 +17,7 @@ from ..results.format import fmt_df, fmt_level, fmt_num, fmt_p, p_equals
 from ..results.ttest import TResult
 from ..results.words import capital
 from .charts import CURVE, INK, MUTED, STRIP_HEIGHT, WIDTH, Q, config, to_altair
+from .clean import label
 from .density import (
     MAX_HALF_WIDTH,
     clamp,
@@ -271,7 +272,7 @@ def interval_panel(result: TResult) -> dict[str, Any]:
     unit = f" ({result.units})" if result.units else ""
     scale = {"domain": [edge_lo, edge_hi], "nice": False, "zero": False}
 
-    x_title = f"{result.comparison}{unit}"
+    x_title = label(f"{result.comparison}{unit}")
 
     def x(field: str) -> dict[str, Any]:
         axis = {"grid": False, "tickCount": 6}

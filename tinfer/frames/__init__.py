@@ -7,22 +7,32 @@ The names below are the package's public face, used by :mod:`tinfer.scale`.
 from __future__ import annotations
 
 from .accessor import TinferFrameAccessor, TinferSeriesAccessor
-from .batch import check_result_names, choose_arms, metric_specs
+from .batch import check_result_names, check_roles, choose_arms, metric_specs
 from .batch_table import compare_summaries
 from .columns import column, metric_values, missing_column, to_float
-from .levels import as_list, choose_two, combine_codes, key_codes, levels_text, py_value
+from .levels import (
+    as_list,
+    choose_two,
+    combine_codes,
+    key_codes,
+    label_pair,
+    levels_text,
+    py_value,
+)
 
 __all__ = [
     "TinferFrameAccessor",
     "TinferSeriesAccessor",
     "as_list",
     "check_result_names",
+    "check_roles",
     "choose_arms",
     "choose_two",
     "column",
     "combine_codes",
     "compare_summaries",
     "key_codes",
+    "label_pair",
     "levels_text",
     "metric_specs",
     "metric_values",

@@ -21,13 +21,27 @@ from ..core.grouped import grouped_moments
 from ..errors import ParameterError
 from ..results.batch import RESULT_COLUMNS, BatchResult
 from .columns import column, metric_values, reject_inf
-from .levels import as_list, choose_two, combine_codes, key_codes, py_value
+from .levels import as_list, choose_two, combine_codes, key_codes, label_pair
 
 #: Up to this many levels of ``by``, every level gets its own column of group codes and the
 #: two compared levels are picked after counting (no remapping pass over the rows).
 FEW_LEVELS = 16
 #: The phrase naming a two-level comparison of a batch in messages.
 WHAT = "two-sample comparison"
+
+
+def check_roles(keys: Sequence[Hashable], by, specs, func: str) -> None:
+    """Refuse a column used in two roles: a segment key that is also ``by`` or a metric."""
+    values = {c for _, cols in specs for c in cols}
+    for k in keys:
+        if (by is not None and k == by) or k in values:
+            is_by = by is not None and k == by
+            role = "the group column given as by" if is_by else "a value column"
+            raise ParameterError(
+                f"The 'within' parameter of {func} names {k!r}, which is also {role}. A column "
+                "can split rows into segments or be compared, not both; drop it from within."
+            )
+    check_result_names(keys, func)
 
 
 def check_result_names(keys: Sequence[Hashable], func: str) -> None:
@@ -188,7 +202,7 @@ def compare_frame(
     keys = as_list(within)
     for k in keys:
         column(df, k)
-    check_result_names(keys, func)
+    check_roles(keys, by, specs, func)
     if by is not None and paired is not None:
         raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
     design = "paired" if paired is not None else ("two-sample" if by is not None else "one-sample")
@@ -251,5 +265,5 @@ def _compared(arms: _Arms, by_seg: np.ndarray, by, groups, notes: list[str]):
             notes.append(f"{others} row(s) in other levels of {by!r} were not used.")
     else:
         chosen, cols = arms.chosen, [0, 1]
-    labels = tuple(str(py_value(arms.levels[i])) for i in chosen)
+    labels = label_pair(*(arms.levels[i] for i in chosen))
     return cols, labels

@@ -15,12 +15,13 @@ import numpy as np
 import pandas as pd
 
 from ..analyses import check_options, from_cube
+from ..checks import shown, summary_problem
 from ..docstrings import fill_params
 from ..errors import DataError, ParameterError
 from ..results.batch import RESULT_COLUMNS, BatchResult
 from .batch import choose_arms
 from .columns import column, to_float
-from .levels import as_list, key_codes, py_value
+from .levels import as_list, key_codes, label_pair, py_value
 
 STAT_NAMES = ("n", "mean", "sd", "ssd", "mean_lo")
 FUNC = "compare_summaries"
@@ -167,7 +168,7 @@ def _place_arms(cube: _Cube, arm, groups, labels) -> tuple[str, ...]:
     cube.place(1, np.flatnonzero(a_codes == second), "")
     if labels is not None:
         return tuple(labels)
-    return (str(py_value(a_levels[first])), str(py_value(a_levels[second])))
+    return label_pair(a_levels[first], a_levels[second])
 
 
 def _keys(frame: pd.DataFrame, within, wide: bool, arm, metric) -> list:
@@ -240,36 +241,33 @@ class _Cube:
 
 
 def _stats(t: pd.DataFrame, suffix: str, rows) -> tuple[np.ndarray, ...]:
-    """n, mean, ssd and mean_lo of ``rows`` (ssd from ``sd`` where no ``ssd`` column)."""
+    """n, mean, ssd and mean_lo of ``rows`` (ssd from ``sd`` where no ``ssd`` column).
+
+    The statistics pass the one validation of summaries (:func:`tinfer.checks.summary_problem`):
+    an empty group may have no mean, a group of one no SD.
+    """
     cols = set(t.columns)
-    n = _num(t, f"n{suffix}")[rows]
-    mean = _num(t, f"mean{suffix}")[rows]
-    if f"ssd{suffix}" in cols:
-        ssd = _num(t, f"ssd{suffix}", single_ok=True)[rows]
-    else:
-        sd = _num(t, f"sd{suffix}", single_ok=True)[rows]
-        ssd = sd * sd * (n - 1.0)
-    # A group of one has no SD (SQL and pandas give NULL/NaN): keep it, untestable.
-    blank = np.isnan(ssd)
-    if (blank & (n >= 2)).any():
+    if f"sd{suffix}" in cols and f"ssd{suffix}" in cols:
         raise DataError(
-            f"Column {'ssd' if f'ssd{suffix}' in cols else 'sd'}{suffix} of the summary "
-            "table is missing for a group of 2 or more; drop those rows first."
+            f"The summary table has both 'sd{suffix}' and 'ssd{suffix}' columns; give one "
+            "(SD with the n - 1 denominator, or the sum of squared deviations), not both."
         )
-    ssd = np.where(blank, 0.0, ssd)
-    if (n < 0).any() or (ssd < 0).any():
-        raise DataError(f"Column n{suffix} or sd{suffix} holds negative values.")
+    spread = f"ssd{suffix}" if f"ssd{suffix}" in cols else f"sd{suffix}"
+    n, mean, sp = (_num(t, name)[rows] for name in (f"n{suffix}", f"mean{suffix}", spread))
+    problem = summary_problem(n, mean, sp, spread_name=spread.removesuffix(suffix))
+    if problem is not None:
+        name, i, value, rule = problem
+        row = t.index[np.atleast_1d(rows)[i]] if not isinstance(rows, slice) else t.index[i]
+        raise DataError(
+            f"Column {name + suffix!r} of the summary table must hold {rule}; row {shown(row)} "
+            f"holds {shown(value)}. Fix or drop that row first."
+        )
+    ssd = sp if spread.startswith("ssd") else sp * sp * (n - 1.0)
+    ssd = np.where(np.isnan(ssd) & (n < 2), 0.0, ssd)  # a group of one: kept, untestable
     lo = _num(t, f"mean_lo{suffix}")[rows] if f"mean_lo{suffix}" in cols else 0.0
-    return n, mean, ssd, lo
+    return n, mean, ssd, np.where(np.isfinite(lo), lo, 0.0)
 
 
-def _num(t: pd.DataFrame, name: str, single_ok: bool = False) -> np.ndarray:
-    """A numeric column of the summary table; NaN allowed only where ``single_ok`` (SDs)."""
-    x = to_float(column(t, name), f"Column {name!r}")
-    bad = np.isinf(x) if single_ok else ~np.isfinite(x)
-    if bad.any():
-        raise DataError(
-            f"Column {name!r} of the summary table holds missing or infinite values; "
-            "drop those rows first."
-        )
-    return x
+def _num(t: pd.DataFrame, name: str) -> np.ndarray:
+    """A numeric column of the summary table (missing values as NaN, checked by the caller)."""
+    return to_float(column(t, name), f"Column {name!r}")

@@ -12,7 +12,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from ..checks import close_matches
+from ..checks import close_matches, shown
 from ..errors import DataError
 
 
@@ -27,14 +27,23 @@ class Sample:
 
 def missing_column(name: Any, columns: Iterable[Any]) -> DataError:
     """The error for a column that is not there, naming the closest ones."""
+    if isinstance(name, pd.Series | pd.Index | np.ndarray | list | dict | set):
+        kind = type(name).__name__
+        article = "an" if kind[0].lower() in "aeiou" else "a"
+        return DataError(
+            f"A column label such as 'weight' was expected, not {article} {kind}"
+            + (f" (this one is named {shown(name.name)})" if getattr(name, "name", None) else "")
+            + ". Pass the column's name: df.tinfer.one_sample('weight'), not the column itself."
+        )
     return DataError(
-        f"There is no column {name!r} in the DataFrame. {close_matches(name, columns)}"
+        f"There is no column {shown(name)} in the DataFrame. {close_matches(name, columns)}"
     )
 
 
 def column(df: pd.DataFrame, name: Hashable) -> pd.Series:
     """The column ``name`` of ``df``, or a DataError naming the close matches."""
-    if not isinstance(name, Hashable) or name not in df.columns:
+    label = isinstance(name, Hashable) and not isinstance(name, pd.Series | pd.Index | np.ndarray)
+    if not label or name not in df.columns:
         raise missing_column(name, df.columns)
     col = df[name]
     if isinstance(col, pd.DataFrame):
@@ -48,6 +57,11 @@ def to_float(series: pd.Series, what: str) -> np.ndarray:
     Raises a DataError for non-numeric or boolean columns.
     """
     dtype = series.dtype
+    if pd.api.types.is_complex_dtype(dtype):
+        raise DataError(
+            f"{what} holds complex numbers; a t procedure needs real values. Take the real "
+            "part, the modulus or the phase first, whichever was measured."
+        )
     if pd.api.types.is_bool_dtype(dtype) or not pd.api.types.is_numeric_dtype(dtype):
         raise DataError(
             f"{what} has dtype {dtype}, not numbers. Convert it first, for example with "

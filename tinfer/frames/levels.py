@@ -26,6 +26,18 @@ def py_value(v: Any) -> Any:
     return v.item() if isinstance(v, np.generic) else v
 
 
+def label_pair(first: Any, second: Any) -> tuple[str, str]:
+    """Text labels of two levels, made distinct when their text is the same (1 and "1").
+
+    >>> label_pair("drip", "furrow"), label_pair(1, "1")
+    (('drip', 'furrow'), ('1', "'1'"))
+    """
+    a, b = str(py_value(first)), str(py_value(second))
+    if a == b:
+        return repr(py_value(first)), repr(py_value(second))
+    return a, b
+
+
 def levels_text(values: Sequence) -> str:
     """The first ten levels as a readable list for messages.
 
@@ -89,7 +101,10 @@ def key_codes(series: pd.Series) -> tuple[np.ndarray, np.ndarray, bool]:
         fast = integer_codes(series.to_numpy())
         if fast is not None:
             return fast[0], fast[1], False
-    codes, uniques = pd.factorize(series, sort=True)
+    try:
+        codes, uniques = pd.factorize(series, sort=True)
+    except TypeError as exc:  # lists, dicts or sets in the column
+        raise ungroupable(series.name, exc) from None
     levels = np.asarray(uniques.astype(object)) if hasattr(uniques, "astype") else uniques
     codes = codes.astype(np.intp, copy=False)
     return codes, np.asarray(levels, dtype=object), bool((codes < 0).any())
@@ -110,6 +125,14 @@ def combine_codes(codes: list[np.ndarray], sizes: list[int]) -> tuple[np.ndarray
         if bad.any():
             out[bad] = -1
     return out, sizes
+
+
+def ungroupable(name: Hashable, exc: Exception) -> DataError:
+    """The error for a key column whose values cannot label groups (lists, sets, dicts)."""
+    return DataError(
+        f"Column {name!r} holds values that cannot label groups ({exc}). Groups need labels "
+        "such as text or numbers; convert the column first, e.g. df[col].astype(str)."
+    )
 
 
 def as_list(x) -> list:

@@ -17,7 +17,7 @@ from ..core.summary import Summary
 from ..errors import DataError
 from ..results.ttest import TResult
 from .columns import Sample, column, finite, to_float
-from .levels import choose_two, levels_text
+from .levels import choose_two, label_pair, levels_text, ungroupable
 
 
 def one_sample(sample: Sample, variable: str, *, func: str, **opts) -> TResult:
@@ -67,7 +67,10 @@ def two_sample(a: Sample, b: Sample, variable: str, *, func: str, **opts) -> TRe
 
 def _two_levels(key: pd.Series, by: Hashable, groups: Sequence | None, what: str) -> list:
     """The two levels of ``key`` to compare, in order (see :func:`choose_two`)."""
-    present = pd.unique(key.dropna())
+    try:
+        present = pd.unique(key.dropna())
+    except TypeError as exc:  # lists, dicts or sets in the column
+        raise ungroupable(by, exc) from None
     first, second = choose_two(present, by, groups, what)
     return [present[first], present[second]]
 
@@ -80,9 +83,9 @@ def two_groups(
     key = column(df, by)
     chosen = _two_levels(key, by, groups, "two-sample test")
     out = []
-    for g in chosen:
+    for g, text in zip(chosen, label_pair(*chosen), strict=True):
         mask = (key == g).to_numpy(dtype=bool, na_value=False)
-        out.append(finite(vals[mask], str(g), f"Column {value!r} in group {g!r}"))
+        out.append(finite(vals[mask], text, f"Column {value!r} in group {text}"))
     return out[0], out[1]
 
 
@@ -146,8 +149,7 @@ def paired_long(
     return _pairwise(
         a.to_numpy(dtype=float),
         b.to_numpy(dtype=float),
-        str(chosen[0]),
-        str(chosen[1]),
+        *label_pair(*chosen),
         f"Column {value!r} under {chosen[0]!r}",
         f"Column {value!r} under {chosen[1]!r}",
     )

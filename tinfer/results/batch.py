@@ -170,7 +170,7 @@ class BatchResult:
             b = (self.n_b[rows], self.mean_b[rows], self.mean_lo_b[rows], self.ssd_b[rows])
         a = (self.n_a[rows], self.mean_a[rows], self.mean_lo_a[rows], self.ssd_a[rows])
         opts = (self.null, self.level, self.side, self.pooled, effect_ci)
-        return procedures.shifted(self.design, a, b, *opts)[0]
+        return procedures.rows(self.design, a, b, *opts)
 
     def segment_labels(self) -> list[str]:
         """Each row's segment as text, ``key=value`` pairs joined by commas."""

@@ -76,7 +76,18 @@ class BootstrapCheck:
     @property
     def verdict(self) -> str:
         """Do the two intervals agree? Limits within 10% of the t interval's width count as
-        agreeing (a rule of thumb, common practice, no source)."""
+        agreeing (a rule of thumb, common practice, no source). A bootstrap limit that is
+        infinite where the t limit is not means the resamples cannot check the t interval."""
+        unbounded = [
+            np.isfinite(t) and not np.isfinite(b)
+            for b, t in zip(self.interval, self.t_interval, strict=True)
+        ]
+        if any(unbounded):
+            return (
+                f"The bootstrap-t interval is unbounded: {self.n_degenerate} of "
+                f"{self.n_resamples} resamples had no spread, as happens with few or tied "
+                "values, so the bootstrap cannot check the t interval for these data."
+            )
         pairs = [
             (b, t)
             for b, t in zip(self.interval, self.t_interval, strict=True)

@@ -13,8 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..checks import check_df, check_level, check_probability, check_side
+from ..checks import check_df, check_level, check_side, fail, is_real, shown
 from ..core import distribution as dist
+from ..errors import ParameterError
 from .format import fmt_df, fmt_num, fmt_p
 
 
@@ -56,11 +57,14 @@ class TDistribution:
 
         Each piece is taken from the tail it lies in, so small areas keep their digits.
         """
-        lo = -np.inf if low is None else np.asarray(low, float)
-        hi = np.inf if high is None else np.asarray(high, float)
+        lo = -np.inf if low is None else _bounds(low, "low", "area")
+        hi = np.inf if high is None else _bounds(high, "high", "area")
         lo, hi = np.broadcast_arrays(np.asarray(lo, float), np.asarray(hi, float))
         if np.any(lo > hi):
-            raise ValueError("area() needs low <= high.")
+            raise ParameterError(
+                f"The 'low' parameter of area must be at most 'high'. Got low={shown(low)} "
+                f"and high={shown(high)} instead."
+            )
         upper_side = lo >= 0  # both bounds in the upper half: difference of upper tails
         lower_side = hi <= 0
         a = np.where(
@@ -76,9 +80,9 @@ class TDistribution:
 
     def percentile(self, q):
         """The value with lower-tail area ``q`` (0 < q < 1)."""
-        q_arr = np.asarray(q, float)
+        q_arr = _numbers(q, "q", "percentile", "a probability in (0, 1)")
         if np.any(~((q_arr > 0) & (q_arr < 1))):
-            check_probability(q, "q", "percentile")
+            raise fail("q", "percentile", "a probability in (0, 1)", q)
         return _out(dist.ppf(q_arr, self.df))
 
     def critical(self, level: float = 0.95, side: str = "two-sided") -> float:
@@ -183,8 +187,14 @@ class TDistribution:
           SD: 1.095
           median: 0 (every df)
         """
+        for name, v in (("low", low), ("high", high)):
+            if v is not None and not (is_real(v) and not math.isnan(v)):
+                raise fail(name, "show", "a number (or None for an open side)", v)
         if low is not None and high is not None and low > high:
-            raise ValueError("show() needs low <= high.")
+            raise ParameterError(
+                f"The 'low' parameter of show must be at most 'high'. Got low={shown(low)} and "
+                f"high={shown(high)} instead."
+            )
         return TDistView(self, low, high, tuple(float(q) for q in percentiles))
 
     def _repr_mimebundle_(self, include=None, exclude=None):
@@ -313,3 +323,19 @@ def moments(distribution: TDistribution) -> list[tuple[str, str]]:
 def df_words(df: float) -> str:
     """df as shown on cards: "12", "20.73" or "∞ (standard normal)"."""
     return "∞ (standard normal)" if math.isinf(df) else fmt_df(df)
+
+
+def _numbers(value, name: str, func: str, what: str) -> np.ndarray:
+    """A number or an array of numbers as floats; strings, bools and objects are refused."""
+    arr = np.asarray(value)
+    if arr.dtype.kind not in "iuf" or (arr.ndim == 0 and not is_real(value)):
+        raise fail(name, func, what, value)
+    return arr.astype(float)
+
+
+def _bounds(value, name: str, func: str) -> np.ndarray:
+    """Bounds of an area: numbers, never NaN (leave a bound out for an open side)."""
+    arr = _numbers(value, name, func, "a number or an array of numbers (None for an open side)")
+    if np.isnan(arr).any():
+        raise fail(name, func, "a number, not NaN (None for an open side)", value)
+    return arr

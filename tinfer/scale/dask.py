@@ -39,14 +39,14 @@ from dask.dataframe.extensions import register_dataframe_accessor
 
 from ..analyses import build, check_options, group_stats
 from ..core.summary import Summary
-from ..errors import ParameterError
+from ..errors import DataError, ParameterError
 from ..frames import (
     as_list,
-    check_result_names,
+    check_roles,
     choose_two,
     compare_summaries,
+    label_pair,
     metric_specs,
-    py_value,
 )
 from ..results import BatchResult, TResult
 from .summaries import METRIC, merged_summaries, partial_summaries, summary_of
@@ -112,7 +112,7 @@ class TinferDaskAccessor:
         table, no_key = merged_summaries(self._obj, [by], [(str(column), (column,), "value")])
         levels = table[by].to_numpy(dtype=object)
         first, second = choose_two(list(levels), by, groups, "two-sample comparison")
-        sums, miss, labs = [], [], []
+        sums, miss = [], []
         for i in (first, second):
             row = table.iloc[i]
             sums.append(
@@ -124,13 +124,12 @@ class TinferDaskAccessor:
                 )
             )
             miss.append(int(row["n_missing"]))
-            labs.append(str(py_value(levels[i])))
         return build(
             "two-sample",
             tuple(sums),
             func="two_sample",
             variable=str(column),
-            labels=tuple(labs),
+            labels=label_pair(levels[first], levels[second]),
             n_missing=tuple(miss),
             null=null,
             side=side,
@@ -209,11 +208,16 @@ class TinferDaskAccessor:
         )
         specs2 = metric_specs(columns, paired, func)
         keys = as_list(within)
-        check_result_names(keys, func)
+        check_roles(keys, by, specs2, func)
         kind = "diff" if paired is not None else "value"
         specs = [(name, cols, kind) for name, cols in specs2]
         all_keys = keys + ([by] if by is not None else [])
         table, dropped = merged_summaries(self._obj, all_keys, specs)
+        if table.empty:
+            raise DataError(
+                "The Dask DataFrame has no rows with values to compare: every partition is "
+                f"empty ({dropped} row(s) had a missing key). Check the filter applied before."
+            )
         names = [s[0] for s in specs]
         table["metric"] = [names[i] for i in table[METRIC]]
         table = table.drop(columns=[METRIC])

@@ -109,8 +109,9 @@ def merged_summaries(ddf: dd.DataFrame, keys: list, specs: list[Spec]) -> tuple[
     table = parts.compute()
     dropped = int(table[DROPPED].sum())
     table = table[table[METRIC] >= 0].reset_index(drop=True)
-    if table.empty:
-        return table, dropped
+    if table.empty:  # every partition empty: the public columns, no rows
+        columns = [*keys, METRIC, "n", "mean", "mean_lo", "ssd", "n_missing"]
+        return pd.DataFrame({c: table[c] if c in table else [] for c in columns}), dropped
     # group id per partial row: (keys..., metric)
     codes = [key_codes(table[k])[0] for k in keys]
     codes.append(table[METRIC].to_numpy(dtype=np.intp))
