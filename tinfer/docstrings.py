@@ -53,9 +53,9 @@ trim : float, default 0
     trimmed-mean t (20% trimmed means, winsorised variances) replaces the t test
     and the estimate is {trimmed}. 0 gives the ordinary t.""",
     "adjust": """\
-adjust : {{"holm", "hochberg", "bh", "by", "none"}}, default "holm"
-    Multiplicity adjustment over all tested rows as one family; also
-    "benjamini-hochberg" and "benjamini-yekutieli".""",
+adjust : {{"holm", "hochberg", "benjamini-hochberg", "benjamini-yekutieli", "none"}}
+    Multiplicity adjustment over all tested rows as one family (default "holm"); "bh"
+    and "by" are accepted as short forms of the two Benjamini methods.""",
     "rate": """\
 rate : float, default 0.05
     Error rate (family-wise for Holm and Hochberg, false discovery rate for BH

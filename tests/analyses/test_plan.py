@@ -1,4 +1,4 @@
-"""Study planning: tinfer.plan, PlanResult and TResult.sensitivity / TResult.plan."""
+"""Study planning: tinfer.plan, PlanResult and TResult.detectable_effect / TResult.plan."""
 
 from __future__ import annotations
 
@@ -248,17 +248,17 @@ def _chart_rows(spec, i):
 
 # ----------------------------------------------------------------------------- from a result
 class TestFromResult:
-    def test_sensitivity_two_sample(self):
+    def test_detectable_effect_two_sample(self):
         """Sensitivity of a 12 + 15 design: the effect with power .8 there (scipy.stats.nct)."""
         r = tinfer.from_summary(n=(12, 15), mean=(5.1, 4.3), sd=(1.2, 1.5))
-        s = r.sensitivity(power=0.8)
+        s = r.detectable_effect(power=0.8)
         assert (s.n, s.n2, s.solved) == (12, 15, "effect")
         assert nct_power(s.effect, 12, 15) == pytest.approx(0.8, abs=1e-10)
 
-    def test_sensitivity_paired_uses_pairs(self):
-        """A paired result's sensitivity counts pairs and keeps the result's level and side."""
+    def test_detectable_effect_paired_uses_pairs(self):
+        """A paired result's detectable effect counts pairs, keeping its level and side."""
         r = tinfer.from_summary(n=18, mean=0.7, sd=1.1, paired=True, level=0.9, side="upper")
-        s = r.sensitivity(0.9)
+        s = r.detectable_effect(0.9)
         assert s.n == 18 and s.level == 0.9 and s.side == "upper"
         assert nct_power(s.effect, 18, None, 0.9, "upper") == pytest.approx(0.9, abs=1e-10)
 
@@ -292,7 +292,7 @@ class TestPlanFromTrimmedResult:
         df = pd.DataFrame({"v": rng.normal(size=30), "g": ["a"] * 15 + ["b"] * 15})
         r = df.tinfer.two_sample("v", by="g", trim=0.2)
         with pytest.raises(tinfer.ParameterError, match="trimmed-means result"):
-            r.sensitivity()
+            r.detectable_effect()
         with pytest.raises(tinfer.ParameterError, match="trimmed-means result"):
             r.plan(power=0.9)
 

@@ -32,7 +32,8 @@ r = df.tinfer.two_sample(col, by="kiln")
 r
 """
 CELL_TDIST = "tinfer.tdist(12).show(low=-1, high=2)"
-CELL_NUMBERS = "print(repr(f'{r.estimate:.2f}|{r.p:.3g}'))"
+# the numbers as the card prints them (a real minus sign in the exponent)
+CELL_NUMBERS = "print(repr(f'{r.estimate:.2f}|{r.p:.3g}'.replace('-', '\u2212')))"
 
 
 @pytest.fixture(scope="module")

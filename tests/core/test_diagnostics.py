@@ -163,3 +163,35 @@ class TestAdvise:
         """Large sample skewness alone (normality p above 0.05) is not called a departure."""
         s = _shape("x", 12, 1.4, 2.0, 0.2, 1)
         assert not (s.skewed or s.heavy_tailed or s.contaminated)
+
+
+class TestSkewAdvice:
+    """Skewness weighed against the sample size; a long tail is not called outliers."""
+
+    def test_long_skewed_tail_is_skew_not_outliers(self):
+        """Order values with skewness near 8 and 2,400 per arm: the Hampel rule flags about
+        16% on the long tail; the advice calls that skew, keeps the mean and points to the
+        bootstrap (skewness reference: scipy.stats.skew, bias-corrected)."""
+        rng = np.random.default_rng(5)
+        shapes = [diag.shape(k, rng.lognormal(3, 1.6, 2400)) for k in ("a", "b")]
+        assert all(s.long_tail and not s.contaminated for s in shapes)
+        text, _ = diag.advise(shapes, design="two-sample")
+        assert "Cochran's rule" in text and "result.bootstrap()" in text
+        assert "part of the distribution, not errors" in text
+        assert "answers another question" in text
+
+    def test_large_sample_passes_cochrans_rule(self):
+        """Exponential data (skewness 2) with n = 2,000 > 25 * 2^2: the t procedure holds."""
+        x = np.random.default_rng(8).exponential(1.0, 2000)
+        s = diag.shape("wait", x)
+        assert abs(s.skewness - stats.skew(x, bias=False)) < 1e-9  # reference: scipy.stats
+        assert s.large_for_skew and s.skewed
+        text, _ = diag.advise([s], design="one-sample")
+        assert "holds up" in text and "trim=0.2" not in text
+
+    def test_one_stray_value_is_still_an_outlier(self):
+        """One extreme value among eight is an outlier, not a long tail: trimming is offered."""
+        s = diag.shape("ms", [212, 198, 205, 220, 201, 209, 214, 640.0])
+        assert not s.long_tail and s.contaminated
+        text, _ = diag.advise([s], design="one-sample")
+        assert "trim=0.2" in text

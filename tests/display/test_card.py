@@ -42,6 +42,11 @@ def _fallback(page: str) -> str:
     return html.unescape(text)
 
 
+def _m(text: str) -> str:
+    """Our rule for printed numbers: a real minus sign (U+2212)."""
+    return text.replace("-", "\u2212")
+
+
 def _cell(page: str, label: str) -> str:
     """The value cell next to a row label of the figures table, tags removed."""
     key = re.escape(html.escape(label))
@@ -67,11 +72,10 @@ def test_card_numbers_match_scipy(kilns):
     d = _decimals(se)
     est = np.mean(KILN_A) - np.mean(KILN_B)
     df = (va + vb) ** 2 / (va**2 / 10 + vb**2 / 11)  # Welch-Satterthwaite
-    assert _cell(page, "Estimate").startswith(f"{est:.{d}f}")
-    assert _cell(page, "95% CI") == f"{ci.low:.{d}f} to {ci.high:.{d}f}"
-    assert _cell(page, "t") == f"{ref.statistic:.3f}"
-    assert _cell(page, "df") == f"{df:.2f}"
-    assert _cell(page, "p-value (two-sided)") == f"{ref.pvalue:#.3g}"
+    assert _cell(page, "Estimate").startswith(_m(f"{est:.{d}f}"))
+    assert _cell(page, "95% CI") == _m(f"{ci.low:.{d}f} to {ci.high:.{d}f}")
+    assert _cell(page, "t") == _m(f"{ref.statistic:.3f} on {df:.2f} df")
+    assert _cell(page, "p-value, two-sided") == _m(f"{ref.pvalue:.2e}")
 
 
 def test_card_effect_size(kilns):
@@ -97,17 +101,26 @@ def test_card_group_descriptives(kilns):
         assert cells[3] == f"{np.std(xs, ddof=1):.{d}f}"
 
 
-def test_card_headline_hypotheses_provenance(kilns):
-    """Headline, both hypotheses, version, time, parameters and fingerprint are in the card."""
+def test_card_headline_question_provenance(kilns):
+    """Headline, the question tested, version, time, settings and fingerprint are in the card."""
     r, page = kilns
     assert html.escape(r.headline()) in page
-    assert "Null" in page and html.escape(r.null_hypothesis[1:]) in page
-    assert html.escape(r.alternative[1:]) in page
+    assert html.escape("Question tested: " + r.question()) in page
+    assert "differ between north and south? Two-sided, at the 5% level." in r.question()
     assert f"tinfer {tinfer.__version__}" in page
     assert f'datetime="{r.created}"' in page
     assert r.fingerprint in page
-    for word in ("level 95%", "side two-sided", "pooled no"):
+    for word in ("level 95%", "side two-sided", "variances not pooled (Welch)"):
         assert word in page
+
+
+def test_footer_lists_only_settings_that_apply():
+    """A one-sample card names no pooling; a margin card names its band, not a side."""
+    one = ttest.result_card(pd.DataFrame({"m": KILN_A}).tinfer.one_sample("m", null=40), False)
+    assert "pooled" not in one.split('class="tinfer-provenance"')[1]
+    eq = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8)
+    foot = ttest.result_card(eq, chart=False).split('class="tinfer-provenance"')[1]
+    assert "band −0.80 to 0.80" in foot and "side" not in foot
 
 
 def test_text_fallback_holds_str(kilns):
@@ -169,7 +182,7 @@ def test_underflowing_p_never_zero():
     # reference: scipy's t.sf also underflows to exactly 0 here
     assert stats.t.sf(r.t, 999) == 0.0
     page = ttest.result_card(r, chart=False)
-    assert _cell(page, "p-value (two-sided)") == "below 1e-300"
+    assert _cell(page, "p-value, two-sided") == "below 1e-300"
 
 
 def test_one_sided_interval_words():
@@ -178,8 +191,8 @@ def test_one_sided_interval_words():
     ref = stats.ttest_1samp(KILN_A, 40.0, alternative="greater")
     d = _decimals(np.std(KILN_A, ddof=1) / math.sqrt(11))
     page = ttest.result_card(r, chart=False)
-    assert _cell(page, "95% CI") == f"{ref.confidence_interval(0.95).low:.{d}f} or more (one-sided)"
-    assert _cell(page, "p-value (upper)") == f"{ref.pvalue:#.3g}"
+    assert _cell(page, "95% lower bound") == f"{ref.confidence_interval(0.95).low:.{d}f}"
+    assert _cell(page, "p-value, one-sided (upper)") == f"{ref.pvalue:#.3g}"
 
 
 def test_chart_embedded_as_svg():
@@ -207,8 +220,8 @@ def test_tdist_card_area_and_percentiles():
     """Area and percentiles in the t-distribution card equal scipy's (reference: scipy)."""
     page = tdist_display.tdist_card(tinfer.tdist(12).show(low=-1.0, high=2.0), chart=False)
     area = stats.t.cdf(2.0, 12) - stats.t.cdf(-1.0, 12)
-    assert _cell(page, "area P(-1 < T < 2)") == f"{area:#.3g}"
-    assert _cell(page, "2.5% percentile") == f"{stats.t.ppf(0.025, 12):.4f}"
+    assert _cell(page, "area P(\u22121 < T < 2)") == f"{area:#.3g}"
+    assert _cell(page, "2.5% percentile") == _m(f"{stats.t.ppf(0.025, 12):.4f}")
     assert _cell(page, "97.5% percentile") == f"{stats.t.ppf(0.975, 12):.4f}"
 
 

@@ -221,7 +221,7 @@ def test_underflowing_p_still_drawn():
     (mark,) = obs["data"]["values"]
     L = top["layer"][0]["encoding"]["x"]["scale"]["domain"][1]
     assert mark["pos"] == L and mark["label"].endswith("→")
-    assert "below 1e-300" in top["title"]["subtitle"]
+    assert "below 1e-300" in " ".join(top["title"]["subtitle"])
 
 
 def test_result_chart_is_valid_altair():

@@ -27,7 +27,9 @@ class TestCardSection:
         """The section shows each one-sided t and p and the conclusion in words."""
         html = deq.card_section(two_sided)
         eq = two_sided.equivalence
-        assert f"{eq.lower.t:.3f}" in html and f"{eq.upper.t:.3f}" in html
+        minus = {ord("-"): "\u2212"}  # our rule: a real minus sign
+        assert f"{eq.lower.t:.3f}".translate(minus) in html
+        assert f"{eq.upper.t:.3f}".translate(minus) in html
         assert "equivalent within ±1.5" in html
         assert html.count("<tr>") == 3  # header row and the two tests
 

@@ -12,7 +12,7 @@ from .bootstrap import bootstrap
 from .diagnostics import diagnose
 from .equivalence import check_margin, equivalence_for
 from .from_summary import from_summary
-from .plan import follow_up, plan, replan, sensitivity_of
+from .plan import detectable_effect_of, follow_up, plan, replan
 from .ttest import build, group_stats, rebuild
 
 __all__ = [
@@ -20,6 +20,7 @@ __all__ = [
     "build",
     "check_margin",
     "check_options",
+    "detectable_effect_of",
     "diagnose",
     "equivalence_for",
     "follow_up",
@@ -30,5 +31,4 @@ __all__ = [
     "rebuild",
     "replan",
     "run_batch",
-    "sensitivity_of",
 ]

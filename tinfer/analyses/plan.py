@@ -222,7 +222,7 @@ def _design_of(result) -> tuple[str, float, float | None, float]:
     return design, float(s.n), None, float(s.sd)
 
 
-def sensitivity_of(result, power: float = 0.8) -> PlanResult:
+def detectable_effect_of(result, power: float = 0.8) -> PlanResult:
     """Smallest standardised effect the design of ``result`` detects with ``power``."""
     design, n1, n2, _ = _design_of(result)
     ratio = n2 / n1 if n2 is not None else 1.0

@@ -36,7 +36,8 @@ def check_trim(trim, func: str, samples, pooled: bool) -> float:
 
 
 def trimmed(design, samples, trim, labels, variable, null, level, side):
-    """Yuen's trimmed-mean t on the stored values; returns the computed arrays and method."""
+    """Yuen's trimmed-mean t on the stored values: the computed arrays, the method in words
+    and each sample's trimmed statistics."""
     parts = [robust.Trimmed.of(np.asarray(x, float), trim) for x in samples]
     names = list(labels) if design == "two-sample" else [f"the values of {variable}"]
     if design == "paired":
@@ -57,7 +58,7 @@ def trimmed(design, samples, trim, labels, variable, null, level, side):
     pct = f"{trim * 100:g}% trimmed"
     if design == "two-sample":
         c = robust.yuen_two_sample(*parts, null=null, level=level, side=side)
-        return c, f"Yuen trimmed-mean t ({pct})"
+        return c, f"Yuen trimmed-mean t ({pct})", parts
     c = robust.yuen_one_sample(parts[0], null=null, level=level, side=side)
     kind = "Paired" if design == "paired" else "One-sample"
-    return c, f"{kind} Yuen trimmed-mean t ({pct})"
+    return c, f"{kind} Yuen trimmed-mean t ({pct})", parts

@@ -9,6 +9,7 @@ trimmed-mean t, :mod:`tinfer.analyses.robust`), adds a margin claim
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import replace
 
 import numpy as np
 
@@ -130,7 +131,8 @@ def build(
         )
         method, pooled = METHODS[design], False
     if trim:
-        c, method = trimmed(design, samples, trim, labels, variable, null, level, side)
+        c, method, parts = trimmed(design, samples, trim, labels, variable, null, level, side)
+        groups = _with_trimmed(groups, parts)
         if design == "one-sample":
             comparison = f"{trim * 100:g}% trimmed mean of {variable}"
     nums = _numbers(c)
@@ -169,6 +171,21 @@ def _effect(c, name: str, level: float) -> Effect:
     """The effect size of one computed test with its interval."""
     ci = (_scalar(c.effect_low), _scalar(c.effect_high))
     return Effect(name=name, value=_scalar(c.effect), ci=ci, level=level)
+
+
+def _with_trimmed(groups: tuple[GroupStats, ...], parts) -> tuple[GroupStats, ...]:
+    """The groups with their trimmed means, winsorised SDs and Yuen SEs (the last groups:
+    the samples, or the paired differences)."""
+    first = len(groups) - len(parts)
+    out = list(groups)
+    for k, t in enumerate(parts, start=first):
+        out[k] = replace(
+            groups[k],
+            trimmed_mean=_scalar(t.mean),
+            winsorised_sd=_scalar(t.wsd),
+            trimmed_se=_scalar(t.se),
+        )
+    return tuple(out)
 
 
 def _numbers(c) -> dict:

@@ -22,7 +22,7 @@ from .distribution import log_gamma_half_ratio
 
 
 def _ncp_for_cdf(df, t, prob) -> np.ndarray:
-    """Noncentrality ``lam`` with ``P(T <= t | df, lam) = prob``, vectorised and polished."""
+    """The noncentrality ``lam`` with ``P(T <= t | df, lam) = prob``, vectorised and polished."""
     df, t, prob = np.broadcast_arrays(*(np.asarray(v, float) for v in (df, t, prob)))
     # For large |t| scipy's nctdtrinc can loop for ever (|t| ~ 1e6 and up, scipy 1.17) and
     # nctdtr turns nan (|lam| ~ 1e6). There, start from (and fall back to) the large-lam

@@ -10,9 +10,11 @@ exactly the decision of the step-down or step-up procedure at that rate.
   ``adj_(i) = max_{j <= i} min(1, (m - j + 1) p_(j))``.
 - ``"hochberg"``: Hochberg (1988) step-up, family-wise error rate (independent or
   positively dependent tests). ``adj_(i) = min_{j >= i} min(1, (m - j + 1) p_(j))``.
-- ``"bh"``: Benjamini and Hochberg (1995) step-up, false discovery rate.
+- ``"benjamini-hochberg"`` (alias ``"bh"``): Benjamini and Hochberg (1995) step-up, false
+  discovery rate.
   ``adj_(i) = min_{j >= i} min(1, m p_(j) / j)``.
-- ``"by"``: Benjamini and Yekutieli (2001), false discovery rate under any dependence:
+- ``"benjamini-yekutieli"`` (alias ``"by"``): Benjamini and Yekutieli (2001), false
+  discovery rate under any dependence:
   BH with ``m`` replaced by ``m * (1 + 1/2 + ... + 1/m)``.
 - ``"none"``: the raw p-values.
 
@@ -25,21 +27,14 @@ import numpy as np
 
 from ..errors import ParameterError
 
-METHODS = ("holm", "hochberg", "bh", "by", "none")
-ALIASES = {
-    "holm": "holm",
-    "hochberg": "hochberg",
-    "bh": "bh",
-    "benjamini-hochberg": "bh",
-    "by": "by",
-    "benjamini-yekutieli": "by",
-    "none": "none",
-}
+#: The methods by their published names (canonical); short forms are accepted as aliases.
+METHODS = ("holm", "hochberg", "benjamini-hochberg", "benjamini-yekutieli", "none")
+ALIASES = {m: m for m in METHODS} | {"bh": "benjamini-hochberg", "by": "benjamini-yekutieli"}
 NAMES = {
     "holm": "Holm step-down (family-wise error rate)",
     "hochberg": "Hochberg step-up (family-wise error rate)",
-    "bh": "Benjamini-Hochberg (false discovery rate)",
-    "by": "Benjamini-Yekutieli (false discovery rate, any dependence)",
+    "benjamini-hochberg": "Benjamini-Hochberg (false discovery rate)",
+    "benjamini-yekutieli": "Benjamini-Yekutieli (false discovery rate, any dependence)",
     "none": "no adjustment",
 }
 
@@ -49,8 +44,8 @@ def check_method(method, func: str) -> str:
     key = method.lower() if isinstance(method, str) else method
     if key not in ALIASES:
         raise ParameterError(
-            f"The 'adjust' parameter of {func} must be one of 'holm', 'hochberg', 'bh' "
-            f"('benjamini-hochberg'), 'by' ('benjamini-yekutieli') or 'none'. "
+            f"The 'adjust' parameter of {func} must be one of 'holm', 'hochberg', "
+            "'benjamini-hochberg' (or 'bh'), 'benjamini-yekutieli' (or 'by') or 'none'. "
             f"Got {method!r} instead."
         )
     return ALIASES[key]
@@ -63,9 +58,8 @@ def adjust(p, method: str = "holm") -> np.ndarray:
     ----------
     p : array_like
         Raw p-values in [0, 1]; NaN marks a test that was not run.
-    method : {"holm", "hochberg", "bh", "by", "none"}
-        See the module docstring. Long names "benjamini-hochberg" and
-        "benjamini-yekutieli" are accepted.
+    method : {"holm", "hochberg", "benjamini-hochberg", "benjamini-yekutieli", "none"}
+        See the module docstring; "bh" and "by" are accepted as short forms.
 
     Returns
     -------
@@ -76,7 +70,7 @@ def adjust(p, method: str = "holm") -> np.ndarray:
     --------
     >>> adjust([0.01, 0.04, 0.03, 0.005], "holm").tolist()
     [0.03, 0.06, 0.06, 0.02]
-    >>> adjust([0.01, 0.04, 0.03, 0.005], "bh").tolist()
+    >>> adjust([0.01, 0.04, 0.03, 0.005], "benjamini-hochberg").tolist()
     [0.02, 0.04, 0.04, 0.02]
     """
     method = check_method(method, "adjust")
@@ -100,7 +94,7 @@ def adjust(p, method: str = "holm") -> np.ndarray:
             adj = np.minimum.accumulate(((m - rank + 1.0) * s)[::-1])[::-1]
         else:
             factor = m / rank
-            if method == "by":
+            if method == "benjamini-yekutieli":
                 factor = factor * np.sum(1.0 / rank)
             adj = np.minimum.accumulate((factor * s)[::-1])[::-1]
         adj = np.minimum(adj, 1.0)

@@ -1,4 +1,4 @@
-"""Power, sample size and sensitivity of t tests from the exact noncentral t distribution.
+"""Power, sample size and detectable effect of t tests from the exact noncentral t distribution.
 
 Everything here is vectorised: arguments broadcast against each other and a whole grid of
 plans is solved in one call, with no Python loop over grid points.
@@ -175,7 +175,7 @@ def solve_ncp(power, df, level=0.95, side: str = "two-sided") -> np.ndarray:
 
 
 def solve_effect(n1, n2=None, *, power=0.8, level=0.95, side: str = "two-sided") -> np.ndarray:
-    """Smallest standardised effect detected with ``power`` (sensitivity), exact noncentral t.
+    """Smallest standardised effect detected with ``power``, from the exact noncentral t.
 
     Positive for two-sided and "upper" tests, negative for "lower" tests.
 

@@ -35,8 +35,11 @@ def provenance_items(r: BatchResult) -> list[tuple[str, str]]:
         ("null", esc(fmt_num(r.null))),
         ("error rate", esc(f"{r.rate:g}")),
         ("adjustment", esc(r.adjust_name)),
-        ("pooled", "yes" if r.pooled else "no"),
-    ]
+    ] + (
+        [("variances", "pooled" if r.pooled else "not pooled (Welch)")]
+        if r.design == "two-sample"
+        else []
+    )
 
 
 @card.register

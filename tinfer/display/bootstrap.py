@@ -11,7 +11,7 @@ import numpy as np
 
 from ..core import distribution as dist
 from ..results.bootstrap import BootstrapCheck
-from ..results.format import fmt_level, fmt_num
+from ..results.format import fmt_df, fmt_fixed, fmt_level, fmt_num
 from . import html
 from .charts import altair
 from .diagnostics import BOX, FLAG, LINE, rounded
@@ -34,7 +34,7 @@ def bootstrap_card(b: BootstrapCheck, chart: bool = True) -> str:
     lv = fmt_level(b.level)
     rows = [
         ["bootstrap-t", *(fmt_num(v, dec) for v in b.interval)],
-        [f"t (df = {b.df:.4g})", *(fmt_num(v, dec) for v in b.t_interval)],
+        [f"t (df = {fmt_df(b.df)})", *(fmt_num(v, dec) for v in b.t_interval)],
     ]
     unit = f" {b.units}" if b.units else ""
     figures = html.figures_table(
@@ -42,7 +42,7 @@ def bootstrap_card(b: BootstrapCheck, chart: bool = True) -> str:
             ("Estimate", html.num(fmt_num(b.estimate, dec) + unit, strong=True)),
             (
                 "t* quantiles",
-                html.num(f"{b.t_star_quantiles[0]:.3f} and {b.t_star_quantiles[1]:.3f}")
+                html.num(" and ".join(fmt_fixed(q, 3) for q in b.t_star_quantiles))
                 + html.aside("(in place of the t critical values)"),
             ),
             ("Resamples", html.num(f"{b.n_resamples:,}") + html.aside(f"(seed {b.seed})")),
@@ -135,7 +135,7 @@ def bootstrap_chart(b: BootstrapCheck):
     dens = alt.Chart(curve).mark_line(color=LINE).encode(x="t:Q", y="density:Q")
     rules = (
         alt.Chart(marks)
-        .mark_rule(strokeWidth=1.5)
+        .mark_rule(strokeWidth=2)
         .encode(
             x="t:Q",
             color=alt.Color(
@@ -145,10 +145,17 @@ def bootstrap_chart(b: BootstrapCheck):
                     domain=["bootstrap t* quantile", "t critical value"], range=[FLAG, LINE]
                 ),
             ),
-            strokeDash=alt.StrokeDash("kind:N", legend=None),
+            # two kinds of line told apart by dash as well as colour, in one legend
+            strokeDash=alt.StrokeDash(
+                "kind:N",
+                title=None,
+                scale=alt.Scale(
+                    domain=["bootstrap t* quantile", "t critical value"], range=[[1, 0], [6, 4]]
+                ),
+            ),
         )
     )
-    sub = [f"{b.n_resamples} resamples (seed {b.seed}); curve: t density at df = {b.df:.4g}"]
+    sub = [f"{b.n_resamples} resamples (seed {b.seed}); curve: t density at df = {fmt_df(b.df)}"]
     if b.n_outside:
         sub.append(f"{b.n_outside} extreme t* beyond the plotted range")
     return alt.layer(hist, dens, rules).properties(

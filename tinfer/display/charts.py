@@ -29,6 +29,7 @@ CURVE = "#1f5f8b"
 SHADE = "#f2bd7f"
 OBSERVED = "#b0413e"
 REFERENCE = "#8a96a3"
+TAIL = "#c76b1a"  # the bar under a tail too thin to see
 FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, 'Helvetica Neue', Arial, sans-serif"
 
 Q = {"type": "quantitative"}
@@ -92,6 +93,9 @@ def config() -> dict[str, Any]:
             "titleFontSize": 11,
             "titleFontWeight": "normal",
         },
+        # x ticks never run together: browsers set the system font a little wider than the
+        # renderer measures it, so labels keep a wide gap and drop out before touching
+        "axisX": {"tickCount": 6, "labelOverlap": "greedy", "labelSeparation": 16},
         "title": {
             "color": INK,
             "fontSize": 12,

@@ -27,6 +27,7 @@ from .charts import (
     OBSERVED,
     REFERENCE,
     SHADE,
+    TAIL,
     WIDTH,
     Q,
 )
@@ -81,6 +82,15 @@ def clamp(v: float, L: float) -> float:
     return min(max(v, -L), L)
 
 
+def critical_marks(values: Sequence[float], L: float) -> list[dict[str, Any]]:
+    """Marks for critical values; a symmetric pair carries one label, "critical ±2.08"."""
+    if len(values) == 2 and math.isclose(values[0], -values[1]):
+        c = abs(values[0])
+        text = mark_label("critical ±", c, L).replace("± ", "±")
+        return [mark("critical", -c, "", L), mark("critical", c, text, L)]
+    return [mark("critical", v, mark_label("critical", v, L), L) for v in values]
+
+
 def mark_label(name: str, value: float, L: float) -> str:
     text = f"{name} {fmt_num(value, 2)}"
     if value > L:
@@ -125,11 +135,12 @@ def marks_layers(marks: list[dict[str, Any]], L: float) -> list[dict[str, Any]]:
             }
         )
         for align, dx in (("left", 4), ("right", -4)):
-            if any(m["align"] == align for m in rows):
+            shown = [m for m in rows if m["align"] == align and m["label"]]
+            if shown:
                 out.append(
                     {
                         "description": f"{kind} label",
-                        "data": {"values": [m for m in rows if m["align"] == align]},
+                        "data": {"values": shown},
                         "mark": {
                             "type": "text",
                             "align": align,
@@ -148,38 +159,162 @@ def marks_layers(marks: list[dict[str, Any]], L: float) -> list[dict[str, Any]]:
     return out
 
 
-def mark(kind: str, value: float, label: str, L: float, row: int) -> dict[str, Any]:
-    """One vertical mark; :func:`_place_labels` later decides which side its label goes."""
+def mark(kind: str, value: float, label: str, L: float, row: int = 0) -> dict[str, Any]:
+    """One vertical mark; :func:`place_labels` later decides the row and side of its label."""
     return {
         "kind": kind,
         "value": value,
         "pos": clamp(value, L),
         "label": label,
-        "ypix": 2 + 14 * row,
+        "ypix": LABEL_TOP,
         "align": "left",
     }
 
 
-def place_labels(marks: list[dict[str, Any]], L: float) -> list[dict[str, Any]]:
-    """Put each label on the side away from the nearest other mark, if it fits there.
+#: Top of the first label row, the rows' spacing, and the rows there are: every row lies
+#: in the head room above the curve's peak (the y scale reaches 1.3 times the peak).
+LABEL_TOP, LABEL_ROW, LABEL_ROWS = 2, 13, 3
+CHAR_PX = 6.2  # a generous width of one 10-px character, for collision checks
 
-    A label that would run past the plot edge goes to the other side of its line.
+
+def place_labels(marks: list[dict[str, Any]], L: float) -> list[dict[str, Any]]:
+    """Give each label a row and a side where it crosses no other mark's line, overlaps no
+    other label and stays inside the plot; observed values are placed first.
+
+    Examples
+    --------
+    >>> ms = [mark("critical", -2.0, "critical −2.00", 4.0), mark("observed", -1.8, "t −1.80", 4.0)]
+    >>> [(m["label"], m["align"], m["ypix"]) for m in place_labels(ms, 4.0)]
+    [('critical −2.00', 'right', 2), ('t −1.80', 'left', 2)]
     """
-    px_per_unit = WIDTH / (2 * L)
-    for m in marks:
-        width = (5.6 * len(m["label"]) + 6) / px_per_unit
-        others = [o["pos"] for o in marks if o is not m and o["pos"] != m["pos"]]
-        nearest = min(others, key=lambda o: abs(o - m["pos"]), default=None)
-        if nearest is None:
-            right = m["pos"] <= 0
-        else:
-            right = nearest < m["pos"]
-        if right and m["pos"] + width > L:
-            right = False
-        elif not right and m["pos"] - width < -L:
-            right = True
-        m["align"] = "left" if right else "right"
+    px = WIDTH / (2 * L)
+    xs = [(m["pos"] + L) * px for m in marks]
+    taken: list[tuple[int, float, float]] = []
+    order = sorted(range(len(marks)), key=lambda i: marks[i]["kind"] != "observed")
+    for i in order:
+        m, x = marks[i], xs[i]
+        if not m["label"]:
+            continue
+        width = CHAR_PX * len(m["label"]) + 6
+        lines = [xs[j] for j in range(len(marks)) if j != i and abs(xs[j] - x) > 0.5]
+        outward = "right" if x >= WIDTH / 2 else "left"
+        sides = [outward, "left" if outward == "right" else "right"]
+
+        def cost(choice: tuple[int, str], x=x, width=width, lines=lines) -> float:
+            row, side = choice
+            lo, hi = (x, x + width) if side == "right" else (x - width, x)
+            outside = max(0.0, -lo) + max(0.0, hi - WIDTH)
+            crossed = sum(lo < v < hi for v in lines)
+            clash = sum(r == row and lo < b and a < hi for r, a, b in taken)
+            return 1000 * clash + 100 * outside + 10 * crossed + row
+
+        row, side = min(((r, s) for r in range(LABEL_ROWS) for s in sides), key=cost)
+        lo, hi = (x, x + width) if side == "right" else (x - width, x)
+        taken.append((row, lo, hi))
+        m["align"] = "left" if side == "right" else "right"
+        m["ypix"] = LABEL_TOP + LABEL_ROW * row
     return marks
+
+
+def tail_layers(
+    shade: Sequence[tuple[float, float]],
+    df: float,
+    L: float,
+    peak: float,
+    labels: Sequence[str],
+    lines: Sequence[float] = (),
+) -> list[dict[str, Any]]:
+    """A bar along the axis under each shaded tail too thin to see, and its area beside it.
+
+    A tail is too thin when the density over it stays below 6% of the peak (about 8 px):
+    the shading is then drawn but invisible, so the bar shows where the p-value lies.
+    ``labels`` go with the shaded areas in order ("" for none); a label sits beside its
+    tail's inner edge, half way up, unless it would cross a marked line or another label.
+    """
+    bars, texts = [], []
+    for (lo, hi), label in zip(shade, labels, strict=True):
+        if not hi > lo or float(max(dist.pdf(np.array([lo, hi]), df))) >= 0.06 * peak:
+            continue
+        bars.append({"lo": lo, "hi": hi})
+        placed = _tail_text(lo, hi, L, label, lines) if label else None
+        if placed is not None and not any(_overlap(placed, t, L) for t in texts):
+            texts.append(placed)
+    if not bars:
+        return []
+    bar_x = x_encoding(L, "lo", None)
+    layers: list[dict[str, Any]] = [
+        {
+            "description": "thin tail",
+            "data": {"values": bars},
+            "mark": {"type": "rule", "color": TAIL, "strokeWidth": 6, "strokeCap": "butt"},
+            "encoding": {"x": bar_x, "x2": {"field": "hi"}, "y": {"value": HEIGHT - 3}},
+        }
+    ]
+    for align, dx in (("right", -5), ("left", 5)):
+        rows = [t for t in texts if t["align"] == align]
+        if rows:
+            layers.append(
+                {
+                    "description": "thin tail label",
+                    "data": {"values": rows},
+                    "mark": {
+                        "type": "text",
+                        "align": align,
+                        "baseline": "middle",
+                        "dx": dx,
+                        "fontSize": 10,
+                        "color": TAIL,
+                    },
+                    "encoding": {
+                        "x": bar_x,
+                        "y": {"value": round(0.6 * HEIGHT)},
+                        "text": {"field": "text", "type": "nominal"},
+                    },
+                }
+            )
+    return layers
+
+
+def _overlap(a: dict, b: dict, L: float) -> bool:
+    """Whether two tail labels (anchor, width in characters, side) share any x."""
+
+    def span(t: dict) -> tuple[float, float]:
+        w = (CHAR_PX * len(t["text"]) + 8) * (2 * L) / WIDTH
+        return (t["lo"] - w, t["lo"]) if t["align"] == "right" else (t["lo"], t["lo"] + w)
+
+    (a0, a1), (b0, b1) = span(a), span(b)
+    return a0 < b1 and b0 < a1
+
+
+def _tail_text(lo: float, hi: float, L: float, label: str, lines: Sequence[float]):
+    """Where a thin tail's label goes: beside the tail's inner edge, half way up, where the
+    curve is near zero; None when that would cross a marked line (the subtitle then
+    carries the number alone)."""
+    at_right = lo > 0 or hi >= L
+    edge = lo if at_right else hi
+    text = f"{label} →" if at_right else f"← {label}"
+    span = (CHAR_PX * len(text) + 8) * (2 * L) / WIDTH
+    inside = (edge - span, edge) if at_right else (edge, edge + span)
+    if inside[0] < -L or inside[1] > L:
+        return None
+    if any(inside[0] < v < inside[1] and abs(v - edge) > 1e-9 * L for v in lines):
+        return None
+    return {"lo": edge, "text": text, "align": "right" if at_right else "left"}
+
+
+def subtitle_lines(text: str, width: int = 64) -> list[str]:
+    """A subtitle as lines of at most about ``width`` characters, split at "; " first.
+
+    >>> subtitle_lines("shaded area: p = 0.01 (two-sided); dashed: standard normal", 40)
+    ['shaded area: p = 0.01 (two-sided)', 'dashed: standard normal']
+    """
+    lines: list[str] = []
+    for part in text.split("; "):
+        if lines and len(lines[-1]) + 2 + len(part) <= width:
+            lines[-1] += "; " + part
+        else:
+            lines.append(part)
+    return lines
 
 
 def density_panel(
@@ -190,7 +325,11 @@ def density_panel(
     marks: list[dict[str, Any]],
     normal: bool,
     title: dict[str, Any],
+    tail_labels: Sequence[str] = (),
 ) -> dict[str, Any]:
+    """The density with its shaded areas, the normal curve, marked values and, where a shaded
+    tail is too thin to see, a bar that shows it (labelled by ``tail_labels``, one per
+    shaded area)."""
     x = x_encoding(L)
     # Head room above the peak keeps the mark labels clear of the curve.
     peak = max(max(r["dens"] for r in rows), NORMAL_PEAK if normal else 0.0)
@@ -236,6 +375,11 @@ def density_panel(
             }
         )
     layers += marks_layers(place_labels(marks, L), L)
+    if tail_labels:
+        lines = [m["pos"] for m in marks]
+        layers += tail_layers(shade, df, L, peak, tail_labels, lines)
+    if isinstance(title.get("subtitle"), str):
+        title = {**title, "subtitle": subtitle_lines(title["subtitle"])}
     return {
         "width": WIDTH,
         "height": HEIGHT,

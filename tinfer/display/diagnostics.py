@@ -179,7 +179,7 @@ def qq_chart(d: Diagnostics):
         alt.Chart(pd.concat(pts, ignore_index=True))
         .mark_circle(size=22, opacity=0.75)
         .encode(
-            x=alt.X("normal quantile:Q", title="normal quantile"),
+            x=alt.X("normal quantile:Q", title="normal quantile", axis=alt.Axis(tickCount=4)),
             y=alt.Y("value:Q", title=label(d.variable), scale=alt.Scale(zero=False)),
             color=_flag_color(alt),
             tooltip=["sample:N", "value:Q", "flag:N"],

@@ -19,11 +19,11 @@ from typing import Any
 
 from ..core import distribution as dist
 from ..results.equivalence import level_words
-from ..results.format import fmt_df, fmt_num, fmt_p, p_equals
+from ..results.format import fmt_df, fmt_fixed, fmt_num, fmt_p, p_equals
 from ..results.ttest import TResult
+from . import density
 from .charts import INK, STRIP_HEIGHT, WIDTH, config, to_altair
 from .clean import label
-from .density import clamp, density_panel, density_rows, half_width, mark, mark_label
 
 BAND = "#6a9f58"  # edge of the shaded band on the data scale (our own choice)
 BAND_FILL = "#dcebd5"
@@ -41,7 +41,7 @@ def card_section(result: TResult) -> str:
     >>> r = tinfer.from_summary(n=(10, 12), mean=(5.0, 4.9), sd=(0.5, 0.6),
     ...                         labels=("<a>", "b"), margin=1.0)
     >>> s = card_section(r)
-    >>> "&lt;a&gt; minus b" in s and "<a>" not in s
+    >>> "&lt;a&gt; and b" in s and "<a>" not in s
     True
     """
     eq = result.equivalence
@@ -52,9 +52,8 @@ def card_section(result: TResult) -> str:
     for name, test in eq.tests:
         rows.append(
             "<tr>"
-            f"<td>{esc(name)}</td>"
-            f"<td>{esc(test.null_hypothesis)}</td>"
-            f"<td>{test.t:.3f}</td>"
+            f"<td>{esc(name)} limit {esc(result.fmt(test.bound))}</td>"
+            f"<td>{esc(fmt_fixed(test.t, 3))}</td>"
             f"<td>{esc(fmt_df(test.df))}</td>"
             f"<td>{esc(fmt_p(test.p, test.log_p))}</td>"
             "</tr>"
@@ -67,8 +66,7 @@ def card_section(result: TResult) -> str:
         f'<p class="tinfer-eq-band">Band: {esc(eq.band_words(result.fmt))}; '
         f"each one-sided test at {eq.alpha:.3g}.</p>"
         '<table class="tinfer-eq-tests">'
-        "<thead><tr><th>limit</th><th>null hypothesis</th><th>t</th><th>df</th>"
-        "<th>p</th></tr></thead>"
+        "<thead><tr><th>test against</th><th>t</th><th>df</th><th>p</th></tr></thead>"
         f"<tbody>{''.join(rows)}</tbody></table>"
         f'<p class="tinfer-eq-verdict {verdict_class}">'
         f"{esc(eq.interval_words(result.fmt))}: {esc(eq.conclusion)} "
@@ -107,20 +105,18 @@ def density_parts(result: TResult, L: float) -> dict[str, Any]:
     """
     eq = result.equivalence
     shade, extra, marks = [], [], []
-    for row, (_, test) in enumerate(eq.tests):
-        a = clamp(test.t, L)
+    for _, test in eq.tests:
+        a = density.clamp(test.t, L)
         shade.append((a, L) if test is eq.lower else (-L, a))
         extra.append(a)
-        word = "t lower" if test is eq.lower else "t upper"
-        marks.append(mark("observed", test.t, mark_label(f"{word} =", test.t, L), L, row))
+        word = "t vs lower limit" if test is eq.lower else "t vs upper limit"
+        marks.append(density.mark("observed", test.t, density.mark_label(f"{word}:", test.t, L), L))
     crit = float(dist.isf(eq.alpha, result.df))
-    for value, test in ((crit, eq.lower), (-crit, eq.upper)):
-        if test is not None:
-            label = mark_label("critical", value, L)
-            marks.append(mark("critical", value, label, L, len(marks)))
+    marks += density.critical_marks([v for v, t in ((-crit, eq.upper), (crit, eq.lower)) if t], L)
     ps = ", ".join(f"{name} {fmt_p(t.p, t.log_p)}" for name, t in eq.tests)
     subtitle = f"shaded: one tail per one-sided test (p: {ps})"
-    return {"shade": shade, "extra": extra, "marks": marks, "subtitle": subtitle}
+    tails = [p_equals(t.p, t.log_p) for _, t in eq.tests]
+    return {"shade": shade, "extra": extra, "marks": marks, "subtitle": subtitle, "tail": tails}
 
 
 def band_layers(result: TResult, edges: tuple[float, float]) -> list[dict[str, Any]]:
@@ -218,9 +214,9 @@ def equivalence_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
     """
     eq = result.equivalence
     df = result.df
-    L = half_width(density_values(result))
+    L = density.half_width(density_values(result))
     parts = density_parts(result, L)
-    rows = density_rows(df, L, parts["extra"])
+    rows = density.density_rows(df, L, parts["extra"])
     sub = parts["subtitle"]
     if normal and not math.isinf(df):
         sub += "; dashed: standard normal"
@@ -228,7 +224,9 @@ def equivalence_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
         "text": f"t distribution, df = {fmt_df(df)}, each test at {eq.alpha:.3g}",
         "subtitle": sub,
     }
-    top = density_panel(df, L, rows, parts["shade"], parts["marks"], normal, title)
+    top = density.density_panel(
+        df, L, rows, parts["shade"], parts["marks"], normal, title, tail_labels=parts["tail"]
+    )
     top["description"] = "t density with one-sided tails"
     return {"config": config(), "vconcat": [top, band_panel(result)], "spacing": 16}
 

@@ -337,7 +337,7 @@ class PlanExplorer(Explorer):
                 max=2,
                 step=0.05,
                 readout_format=".3g",
-                description="ratio n2 / n1",
+                description="group 2 size per 1",
                 continuous_update=False,
                 style=LABEL_STYLE,
                 layout=w.Layout(width=WIDE),

@@ -44,8 +44,6 @@ COLUMNS = {
     "diff": "difference",
     "power": "power",
     "target": "target power",
-    "df": "df",
-    "ncp": "noncentrality",
 }
 
 
@@ -78,8 +76,6 @@ def single_rows(p: PlanResult) -> list[tuple[str, str]]:
         power += aside(f"(target {_g(p.target, 3)})")
     rows.append(("Power", power))
     rows.append(("Significance level", num(fmt_level(1 - p.level)) + aside(p.side)))
-    rows.append(("df", num(f"{p.df:g}")))
-    rows.append(("Noncentrality", num(_g(p.ncp))))
     rows.append(("Method", esc(p.method)))
     return rows
 
@@ -117,7 +113,7 @@ def inputs(p: PlanResult) -> list[tuple[str, str]]:
     items.append(("level", esc(fmt_level(p.level))))
     items.append(("side", esc(p.side)))
     if p.design == "two-sample":
-        items.append(("ratio", esc(f"{p.ratio:g}")))
+        items.append(("group sizes", esc(f"{p.ratio:g} in the second per 1 in the first")))
     if p.sd is not None:
         items.append(("SD", esc(_g(p.sd))))
     if p.margin is not None:

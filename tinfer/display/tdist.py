@@ -101,8 +101,8 @@ def tdist_spec(
         extra += [a, b]
     rows = density_rows(df, L, extra)
     marks = [
-        mark("percentile", v, mark_label(f"{100 * q:.4g}%:", v, L), L, i % 2)
-        for i, (q, v) in enumerate(zip(qs, q_vals, strict=True))
+        mark("percentile", v, mark_label(f"{100 * q:.4g}%:", v, L), L)
+        for q, v in zip(qs, q_vals, strict=True)
     ]
     sub = []
     if bounds:
@@ -110,7 +110,8 @@ def tdist_spec(
     if normal and not math.isinf(df):
         sub.append("dashed: standard normal")
     title = {"text": f"t distribution, df = {fmt_df(df)}", "subtitle": "; ".join(sub) or " "}
-    spec = density_panel(df, L, rows, shade, marks, normal, title)
+    area = [f"area {fmt_p(distribution.area(low, high))}"] if bounds else []
+    spec = density_panel(df, L, rows, shade, marks, normal, title, tail_labels=area)
     spec["description"] = "t distribution"
     spec["config"] = config()
     return spec

@@ -13,14 +13,16 @@ import math
 from typing import Any
 
 from ..core import distribution as dist
-from ..results.format import fmt_df, fmt_level, fmt_num, fmt_p, p_equals
+from ..results.equivalence import level_words
+from ..results.format import fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p, p_equals
+from ..results.sentences import SIDE_WORDS, test_line
 from ..results.ttest import TResult
-from ..results.words import capital
-from .charts import CURVE, INK, MUTED, STRIP_HEIGHT, WIDTH, Q, config, to_altair
-from .clean import label
+from ..results.words import capital, interval_words
+from .charts import config, to_altair
 from .density import (
     MAX_HALF_WIDTH,
     clamp,
+    critical_marks,
     density_panel,
     density_rows,
     half_width,
@@ -28,12 +30,13 @@ from .density import (
     mark_label,
 )
 from .equivalence import card_section, equivalence_spec
+from .estimate import interval_panel
 from .html import (
     aside,
+    card_start,
     chart_block,
     esc,
     figures_table,
-    head,
     notes,
     num,
     provenance,
@@ -46,43 +49,97 @@ from .render import card
 
 
 def result_figures(result: TResult) -> str:
-    """The compact table of the test's numbers."""
+    """The compact table of the test's numbers: the decision's own p and interval in bold.
+
+    With a margin the emphasised p is the equivalence (or non-inferiority) p beside the
+    matching ``1 - 2 alpha`` interval; the ordinary test follows on a line of its own.
+    """
     e = result.effect
-    e_lo, e_hi = (fmt_num(v, 3) if math.isfinite(v) else fmt_num(v) for v in e.ci)
-    rows = [
-        (
-            "Estimate",
-            num(result.fmt(result.estimate), strong=True)
-            + aside(f"(SE {fmt_num(result.se, result.decimals + 1)})"),
-        ),
-        (f"{fmt_level(result.level)} CI", num(result.interval_words())),
-        ("t", num(f"{result.t:.3f}")),
-        ("df", num(fmt_df(result.df))),
-        (f"p-value ({result.side})", num(fmt_p(result.p, result.log_p), strong=True)),
-        (
-            f"Effect size, {e.name}",
-            num(f"{e.value:.3f}") + aside(f"({fmt_level(e.level)} CI {e_lo} to {e_hi})"),
-        ),
+    eq = result.equivalence
+    estimate = num(result.fmt(result.estimate), strong=True) + aside(
+        f"(SE {fmt_num(result.se, result.decimals)})"
+    )
+    test = num(f"{fmt_fixed(result.t, 3)} on {fmt_df(result.df)} df")
+    if eq is None:
+        rows = [
+            ("Estimate", estimate),
+            (level_label(result), num(_interval_cell(result))),
+            ("t", test),
+            (f"p-value, {SIDE_WORDS[result.side]}", num(fmt_p(result.p, result.log_p), True)),
+        ]
+    else:
+        label = {"equivalence": "Equivalence p (TOST)"}.get(eq.kind, f"{capital(eq.kind)} p")
+        rows = [
+            ("Estimate", estimate),
+            (capital(level_words(eq)), num(claim_interval(result))),
+            (label, num(fmt_p(eq.p, eq.log_p), strong=True)),
+        ]
+    rows += [
+        (f"Effect size, {e.name}", num(fmt_num(e.value, 3)) + aside(
+            f"({fmt_level(e.level)} CI {fmt_num(e.ci[0], 3)} to {fmt_num(e.ci[1], 3)})"
+        )),
         ("Method", esc(result.method)),
-    ]
+    ]  # fmt: skip
     return figures_table(rows)
 
 
+def claim_interval(result: TResult) -> str:
+    """The interval that matches a margin claim's decision: "lo to hi", or the one bound."""
+    eq = result.equivalence
+    lo, hi = eq.ci
+    if eq.lower is not None and eq.upper is not None:
+        return f"{result.fmt(lo)} to {result.fmt(hi)}"
+    return result.fmt(lo if eq.lower is not None else hi)
+
+
+def _interval_cell(result: TResult) -> str:
+    """The interval's value: "lo to hi", or the one finite bound of a one-sided test."""
+    lo, hi = result.ci
+    if result.side == "two-sided":
+        return f"{result.fmt(lo)} to {result.fmt(hi)}"
+    return result.fmt(lo if result.side == "upper" else hi)
+
+
+def level_label(result: TResult) -> str:
+    """The interval's row label: "95% CI", or "95% lower bound" for a one-sided test."""
+    if result.side == "two-sided":
+        return f"{fmt_level(result.level)} CI"
+    which = "lower" if result.side == "upper" else "upper"
+    return f"{fmt_level(result.level)} {which} bound"
+
+
+def reference_line(result: TResult) -> str:
+    """With a margin: the ordinary test, on a muted line of its own, for reference only."""
+    if result.equivalence is None:
+        return ""
+    text = (
+        f"For reference, not the decision: the ordinary {SIDE_WORDS[result.side]} test "
+        f"against {result.fmt(result.null)} gives {test_line(result)}, "
+        f"{interval_words(*result.ci, result.fmt, result.level)}."
+    )
+    return f'<p class="tinfer-foot">{esc(text)}</p>'
+
+
 def groups_table(result: TResult) -> str:
-    """Per-group descriptives: n, missing dropped, mean, SD and SE."""
+    """Per-group descriptives: n, missing dropped, mean, SD and SE, in one decimals rule.
+
+    A trimmed-means result shows each group's trimmed mean, winsorised SD and Yuen SE, the
+    numbers its test used.
+    """
+    trimmed = result.trim > 0
+    names = ("trimmed mean", "winsorised SD", "SE") if trimmed else ("mean", "SD", "SE")
     d = result.decimals
     head_cells = "".join(
-        f'<th scope="col" class="tinfer-num">{h}</th>' for h in ("n", "missing", "mean", "SD", "SE")
+        f'<th scope="col" class="tinfer-num">{h}</th>' for h in ("n", "missing", *names)
     )
     rows = []
     for g in result.groups:
-        cells = (
-            str(g.n),
-            str(g.n_missing),
-            fmt_num(g.mean, d),
-            fmt_num(g.sd, d),
-            fmt_num(g.se, d + 1),
+        centre = (
+            (g.trimmed_mean, g.winsorised_sd, g.trimmed_se)
+            if trimmed and g.trimmed_mean is not None
+            else (g.mean, g.sd, g.se)
         )
+        cells = (str(g.n), str(g.n_missing), *(fmt_num(v, d) for v in centre))
         tds = "".join(f'<td class="tinfer-num">{esc(c)}</td>' for c in cells)
         rows.append(f'<tr><th scope="row">{esc(g.label)}</th>{tds}</tr>')
     return (
@@ -107,17 +164,36 @@ def result_notes(result: TResult) -> list[str]:
 
 
 def result_provenance(result: TResult) -> str:
-    return provenance(
-        [
-            version_item(),
-            ("computed", when(result.created)),
-            ("level", esc(fmt_level(result.level))),
-            ("side", esc(result.side)),
-            ("null", esc(result.fmt(result.null))),
-            ("pooled", "yes" if result.pooled else "no"),
-            ("fingerprint", f"<code>{esc(result.fingerprint)}</code>"),
-        ]
-    )
+    """The footer: version, time, and only the settings that apply to this design."""
+    eq = result.equivalence
+    items = [version_item(), ("computed", when(result.created))]
+    items.append(("level", esc(fmt_level(result.level))))
+    if eq is None:
+        items.append(("side", esc(result.side)))
+    else:
+        items.append(("band", esc(eq.band_words(result.fmt))))
+    items.append(("null", esc(result.fmt(result.null))))
+    if result.design == "two-sample" and not result.trim:
+        items.append(("variances", "pooled" if result.pooled else "not pooled (Welch)"))
+    if result.trim:
+        items.append(("trim", esc(f"{result.trim:g} per tail")))
+    items.append(("fingerprint", f"<code>{esc(result.fingerprint)}</code>"))
+    return provenance(items)
+
+
+def chip(result: TResult) -> tuple[str, str]:
+    """The verdict chip: what the card's decision is, in two or three words."""
+    eq = result.equivalence
+    if eq is not None:
+        shown = eq.decision
+        return f"{eq.kind} {'shown' if shown else 'not shown'}", (
+            "tinfer-chip-out" if shown else "tinfer-chip-in"
+        )
+    if result.significant:
+        return "difference shown" if result.side == "two-sided" else "direction shown", (
+            "tinfer-chip-out"
+        )
+    return "no difference shown", "tinfer-chip-in"
 
 
 @card.register
@@ -133,27 +209,12 @@ def result_card(result: TResult, chart: bool = True) -> str:
     True
     """
     level = fmt_level(result.level)
-    if result.significant:
-        chip, chip_cls = f"null outside the {level} CI", "tinfer-chip-out"
-    else:
-        chip, chip_cls = f"null inside the {level} CI", "tinfer-chip-in"
-    if result.equivalence is not None:
-        shown = result.equivalence.decision
-        chip = f"{result.equivalence.kind} {'shown' if shown else 'not shown'}"
-        chip_cls = "tinfer-chip-out" if shown else "tinfer-chip-in"
     numbers = (
         result_figures(result)
+        + reference_line(result)
         + card_section(result)
         + section("groups")
         + groups_table(result)
-        + section("hypotheses")
-        + figures_table(
-            [
-                ("Null", esc(capital(result.null_hypothesis))),
-                ("Alternative", esc(capital(result.alternative))),
-            ],
-            "tinfer-figures tinfer-hypotheses",
-        )
     )
     chart_html = (
         chart_block(
@@ -165,8 +226,8 @@ def result_card(result: TResult, chart: bool = True) -> str:
         else ""
     )
     inner = (
-        head(result.method, chip, chip_cls)
-        + f'<p class="tinfer-headline">{esc(result.headline())}</p>'
+        card_start(result.method, result.headline(), *chip(result))
+        + f'<p class="tinfer-question">{esc("Question tested: " + result.question())}</p>'
         + f'<div class="tinfer-cols"><div class="tinfer-numbers">{numbers}</div>'
         + f"{chart_html}</div>"
         + notes(result_notes(result))
@@ -208,19 +269,29 @@ def result_spec(result: TResult, normal: bool = True) -> dict[str, Any]:
         a = clamp(t, L)
         shade, extra = [(-L, a)], [a]
     rows = density_rows(df, L, extra)
-    marks = [mark("observed", t, mark_label("t =", t, L), L, 0)]
-    marks += [mark("critical", c, mark_label("critical", c, L), L, 1) for c in crits]
+    marks = [mark("observed", t, mark_label("t =", t, L), L)]
+    marks += critical_marks(crits, L)
     sub = f"shaded area: {p_equals(result.p, result.log_p)} ({side})"
     if normal and not math.isinf(df):
         sub += "; dashed: standard normal"
     title = {"text": f"t distribution, df = {fmt_df(df)}", "subtitle": sub}
-    top = density_panel(df, L, rows, shade, marks, normal, title)
+    top = density_panel(
+        df, L, rows, shade, marks, normal, title, tail_labels=_tail_labels(result, shade)
+    )
     top["description"] = "t density with p-value"
     return {
         "config": config(),
         "vconcat": [top, interval_panel(result)],
         "spacing": 16,
     }
+
+
+def _tail_labels(result: TResult, shade) -> list[str]:
+    """The p-value beside the tail it belongs to (two-sided: beside the right tail)."""
+    p = p_equals(result.p, result.log_p)
+    if len(shade) == 2:
+        return ["", f"{p}, both tails"]
+    return [p]
 
 
 def result_chart(result: TResult, normal: bool = True):
@@ -246,102 +317,3 @@ def result_chart(result: TResult, normal: bool = True):
     'VConcatChart'
     """
     return to_altair(result_spec(result, normal))
-
-
-def interval_panel(result: TResult) -> dict[str, Any]:
-    """The estimate with its interval against ``null``, on the data's own scale.
-
-    An infinite (one-sided) limit is drawn to the panel edge, ended by a triangle.
-    """
-    lo, hi = result.ci
-    est, null = result.estimate, result.null
-    finite = [v for v in (lo, hi, est, null) if math.isfinite(v)]
-    span = max(finite) - min(finite)
-    if not span > 0:
-        span = abs(est) or 1.0
-    edge_lo, edge_hi = min(finite) - 0.2 * span, max(finite) + 0.2 * span
-    dec = result.decimals
-    row = {
-        "est": est,
-        "lo": lo if math.isfinite(lo) else edge_lo,
-        "hi": hi if math.isfinite(hi) else edge_hi,
-        "null": null,
-        "label": fmt_num(est, dec),
-        "null_label": f"null {fmt_num(null, dec)}",
-    }
-    unit = f" ({result.units})" if result.units else ""
-    scale = {"domain": [edge_lo, edge_hi], "nice": False, "zero": False}
-
-    x_title = label(f"{result.comparison}{unit}")
-
-    def x(field: str) -> dict[str, Any]:
-        axis = {"grid": False, "tickCount": 6}
-        return {"field": field, **Q, "scale": scale, "title": x_title, "axis": axis}
-
-    layers: list[dict[str, Any]] = [
-        {
-            "description": "null",
-            "mark": {"type": "rule", "color": MUTED, "strokeDash": [2, 3]},
-            "encoding": {"x": x("null")},
-        },
-        {
-            "description": "interval",
-            "mark": {"type": "rule", "color": CURVE, "strokeWidth": 3},
-            "encoding": {"x": x("lo"), "x2": {"field": "hi"}},
-        },
-        {
-            "description": "estimate",
-            "mark": {"type": "point", "filled": True, "size": 70, "color": CURVE, "opacity": 1},
-            "encoding": {"x": x("est")},
-        },
-        {
-            "description": "estimate label",
-            "mark": {"type": "text", "dy": -12, "fontSize": 10, "color": INK},
-            "encoding": {"x": x("est"), "text": {"field": "label", "type": "nominal"}},
-        },
-        {
-            "description": "null label",
-            "mark": {
-                "type": "text",
-                "align": "left",
-                "dx": 4,
-                "dy": 14,
-                "fontSize": 9,
-                "color": MUTED,
-            },
-            "encoding": {"x": x("null"), "text": {"field": "null_label", "type": "nominal"}},
-        },
-    ]
-    layers += _open_ends(lo, hi, edge_lo, edge_hi, x)
-    side_word = "" if result.side == "two-sided" else " (one-sided)"
-    return {
-        "description": "estimate and interval",
-        "width": WIDTH,
-        "height": STRIP_HEIGHT,
-        "title": {"text": f"estimate and {fmt_level(result.level)} CI{side_word}", "fontSize": 11},
-        "data": {"values": [row]},
-        "layer": layers,
-    }
-
-
-def _open_ends(lo: float, hi: float, edge_lo: float, edge_hi: float, x) -> list[dict[str, Any]]:
-    """A triangle at the panel edge for each infinite (one-sided) limit of the interval."""
-    layers: list[dict[str, Any]] = []
-    for limit, edge, shape in ((lo, edge_lo, "triangle-left"), (hi, edge_hi, "triangle-right")):
-        if not math.isfinite(limit):
-            layers.append(
-                {
-                    "description": "open end",
-                    "data": {"values": [{"edge": edge}]},
-                    "mark": {
-                        "type": "point",
-                        "shape": shape,
-                        "filled": True,
-                        "size": 60,
-                        "color": CURVE,
-                        "opacity": 1,
-                    },
-                    "encoding": {"x": x("edge")},
-                }
-            )
-    return layers

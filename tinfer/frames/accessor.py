@@ -290,7 +290,7 @@ class TinferFrameAccessor:
         ...                               508, 507, 509],
         ...                    "line": ["new", "new", "new", "old", "old", "old"] * 2,
         ...                    "shift": ["day"] * 6 + ["night"] * 6})
-        >>> m = df.tinfer.compare("fill_g", by="line", within="shift", adjust="bh")
+        >>> m = df.tinfer.compare("fill_g", by="line", within="shift", adjust="benjamini-hochberg")
         >>> m.comparison, m.n_tests, m.estimate.round(2).tolist()
         ('new minus old', 2, [4.0, 2.33])
         """

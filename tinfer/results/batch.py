@@ -13,7 +13,8 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..core import multiplicity, procedures
-from .format import fmt_df, fmt_level, fmt_num, fmt_p
+from .card import Card
+from .format import column_decimals, fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p
 from .provenance import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -52,7 +53,7 @@ RESULT_COLUMNS = (
 
 
 @dataclass(frozen=True, eq=False)
-class BatchResult:
+class BatchResult(Card):
     """Many t tests of the same kind, one per segment and metric, with adjusted p-values.
 
     Numbers and words only. Row ``i`` is metric ``metrics[row_metric[i]]`` in segment
@@ -246,15 +247,18 @@ class BatchResult:
     def top_rows(self, k: int = TOP_ROWS) -> list[dict[str, str]]:
         """The ``k`` smallest-p rows as formatted strings, keyed as :data:`HEADERS`."""
         seg = self.segment_labels()
+        shown = self.order_by_p()[:k]
+        d = column_decimals(self.se[shown])  # one rule for the whole column
         rows = []
-        for i in self.order_by_p()[:k]:
+        for i in shown:
             rows.append(
                 {
                     "segment": seg[i],
                     "metric": self.metrics[self.row_metric[i]],
-                    "estimate": fmt_num(float(self.estimate[i])),
-                    "ci": f"{fmt_num(float(self.ci_low[i]))} to {fmt_num(float(self.ci_high[i]))}",
-                    "t": f"{self.t[i]:.2f}",
+                    "estimate": fmt_num(float(self.estimate[i]), d),
+                    "ci": f"{fmt_num(float(self.ci_low[i]), d)} to "
+                    f"{fmt_num(float(self.ci_high[i]), d)}",
+                    "t": fmt_fixed(float(self.t[i]), 2),
                     "df": fmt_df(float(self.df[i])),
                     "p": fmt_p(float(self.p[i])),
                     "p_adj": fmt_p(float(self.p_adjusted[i])),
@@ -279,10 +283,6 @@ class BatchResult:
         return f"<BatchResult {self.design}, {self.n_rows} rows>\n{self}"
 
     # ------------------------------------------------------------------ display
-    def _repr_mimebundle_(self, include=None, exclude=None):
-        from ..display.render import mimebundle
-
-        return mimebundle(self)
 
     def chart(self, top: int = 30, page: int | None = None):
         """Forest plot of estimates with intervals, smallest p first, discoveries marked.

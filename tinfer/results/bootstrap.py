@@ -11,11 +11,12 @@ from typing import Any
 
 import numpy as np
 
-from .format import decimals_for, fmt_level, fmt_num
+from .card import Card
+from .format import decimals_for, fmt_df, fmt_fixed, fmt_level, fmt_num
 
 
 @dataclass(frozen=True, eq=False)
-class BootstrapCheck:
+class BootstrapCheck(Card):
     """A bootstrap-t (percentile-t) interval set beside the t interval of a result.
 
     Attributes
@@ -131,10 +132,10 @@ class BootstrapCheck:
             f"Bootstrap-t cross-check of the {self.statistic}: {self.comparison}",
             f"  estimate {fmt_num(self.estimate, dec)}" + (f" {self.units}" if self.units else ""),
             f"  {lv} bootstrap-t interval  [{bl}, {bh}]",
-            f"  {lv} t interval            [{tl}, {th}]   (df = {self.df:.4g})",
+            f"  {lv} t interval            [{tl}, {th}]   (df = {fmt_df(self.df)})",
             f"  {self.n_resamples} resamples, seed {self.seed}; the t* quantiles "
-            f"{self.t_star_quantiles[0]:.3f} and {self.t_star_quantiles[1]:.3f} replace the "
-            "t critical values.",
+            + " and ".join(fmt_fixed(q, 3) for q in self.t_star_quantiles)
+            + " replace the t critical values.",
             f"  {self.verdict}",
         ]
         if self.n_degenerate:
@@ -146,10 +147,8 @@ class BootstrapCheck:
     def __repr__(self) -> str:
         return f"<BootstrapCheck {self.design}>\n{self}"
 
-    def _repr_mimebundle_(self, include=None, exclude=None) -> dict[str, str]:
-        from ..display.bootstrap import bootstrap_card
-
-        return {"text/plain": repr(self), "text/html": bootstrap_card(self)}
+    def plain_text(self) -> str:
+        return repr(self)
 
     def chart(self):
         """Histogram of the bootstrap t* against the t density (an Altair chart)."""

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..core import diagnostics as diag
+from .card import Card
 from .format import decimals_for, fmt_num
 
 #: Points per sample kept for Q-Q and strip charts; above this the charts thin out.
@@ -18,7 +19,7 @@ MAX_POINTS = 250
 
 
 @dataclass(frozen=True, eq=False)
-class Diagnostics:
+class Diagnostics(Card):
     """Checks of the assumptions behind a t result, with advice in plain words.
 
     Attributes
@@ -123,10 +124,8 @@ class Diagnostics:
     def __repr__(self) -> str:
         return f"<Diagnostics {self.design}>\n{self}"
 
-    def _repr_mimebundle_(self, include=None, exclude=None) -> dict[str, str]:
-        from ..display.diagnostics import diagnostics_card
-
-        return {"text/plain": repr(self), "text/html": diagnostics_card(self)}
+    def plain_text(self) -> str:
+        return repr(self)
 
     def qq_chart(self):
         """Normal Q-Q plot per sample (an Altair chart, not displayed)."""

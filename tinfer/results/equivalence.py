@@ -13,7 +13,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
 
-from .format import fmt_df, fmt_level, fmt_num, p_equals
+from .format import fmt_df, fmt_fixed, fmt_level, fmt_num, p_equals
 from .words import Fmt, interval_words, signed
 
 KIND_TITLES = {
@@ -114,18 +114,17 @@ class Equivalence:
         return interval_words(lo, hi, fmt, 1.0 - self.alpha, one_sided="one-sided ")
 
     def text_lines(self, fmt: Fmt) -> list[str]:
-        """Plain-text lines: the band, each one-sided test, the interval and the verdict."""
-        lines = [f"{self.title}: band {self.band_words(fmt)}, each test at {self.alpha:.3g}"]
-        for _, test in self.tests:
-            lines.append(
-                f"  H0 {test.null_hypothesis}: t = {test.t:.3f}, df = {fmt_df(test.df)}, "
-                f"{p_equals(test.p, test.log_p)}"
-            )
+        """Plain-text lines: the claim's p and interval, each one-sided test, the band."""
         verdict = "shown" if self.decision else "not shown"
-        lines.append(
-            f"  {self.interval_words(fmt)}; {verdict}: {self.conclusion} "
-            f"({p_equals(self.p, self.log_p)})"
-        )
+        lines = [
+            f"{self.title}, {verdict}: {p_equals(self.p, self.log_p)}, "
+            f"{self.interval_words(fmt)}; band {self.band_words(fmt)}"
+        ]
+        for name, test in self.tests:
+            lines.append(
+                f"  against the {name} limit {fmt(test.bound)}: t {fmt_fixed(test.t, 3)} on "
+                f"{fmt_df(test.df)} df, {p_equals(test.p, test.log_p)}"
+            )
         if self.note:
             lines.append(f"  {self.note}")
         return lines

@@ -2,16 +2,62 @@
 
 The p-value rule (documented in docs/methods.md):
 - three significant digits, fixed notation down to 0.0001 ("0.0382", "0.000417");
-- below 0.0001, scientific notation with three significant digits ("3.82e-07");
+- below 0.0001, scientific notation with three significant digits ("3.82e−07");
 - never "0": when the true p is below what double precision holds (about 1e-300),
   the text says "below 1e-300" and the exact natural log of p is kept on the result.
+
+Every number printed by tinfer passes through this module, so that one rule holds in every
+card, table and text form: a real minus sign (U+2212), whole numbers (such as integer df)
+without decimals, and one number of decimals per column (:func:`column_decimals`).
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable
 
 P_FLOOR = 1e-300
+MINUS = "\u2212"
+
+
+def minus(text: str) -> str:
+    """``text`` with every hyphen-minus made a real minus sign.
+
+    >>> minus("-1.5e-07")
+    '−1.5e−07'
+    """
+    return text.replace("-", MINUS)
+
+
+def fmt_fixed(x: float, decimals: int) -> str:
+    """A number with fixed decimals and a real minus sign (∞ for infinities).
+
+    >>> fmt_fixed(-2.91804, 3), fmt_fixed(4.5, 0), fmt_fixed(float("-inf"), 2)
+    ('−2.918', '4', '−∞')
+    """
+    if math.isnan(x):
+        return "n/a"
+    if math.isinf(x):
+        return "∞" if x > 0 else "−∞"
+    text = f"{x:.{decimals}f}"
+    if text.lstrip("-").strip("0.") == "":  # -0.00 reads 0.00
+        text = text.lstrip("-")
+    return minus(text)
+
+
+def column_decimals(scales: Iterable[float], digits: int = 2) -> int:
+    """Decimals for a whole column: enough to show its smallest scale to ``digits`` digits.
+
+    A column's scale is its standard error (for estimates and limits) or its spread; using
+    the smallest in the column gives every row the same decimals. Common practice, no source.
+
+    >>> column_decimals([0.797, 16.7]), column_decimals([250.0]), column_decimals([])
+    (2, 0, 4)
+    """
+    finite = [abs(v) for v in scales if math.isfinite(v) and v > 0]
+    if not finite:
+        return 4
+    return int(min(max(digits - 1 - math.floor(math.log10(min(finite))), 0), 12))
 
 
 def fmt_p(p: float, log_p: float | None = None) -> str:
@@ -20,7 +66,7 @@ def fmt_p(p: float, log_p: float | None = None) -> str:
     Examples
     --------
     >>> fmt_p(0.03824), fmt_p(0.5), fmt_p(4.17e-4), fmt_p(3.8209e-7), fmt_p(0.0, -1234.5)
-    ('0.0382', '0.500', '0.000417', '3.82e-07', 'below 1e-300')
+    ('0.0382', '0.500', '0.000417', '3.82e−07', 'below 1e-300')
     """
     if not math.isfinite(p):
         return "undefined"
@@ -29,7 +75,7 @@ def fmt_p(p: float, log_p: float | None = None) -> str:
     if p >= 1e-4:
         digits = max(3 - 1 - math.floor(math.log10(p)), 3)
         return f"{p:.{digits}f}" if p < 1 else "1"
-    return f"{p:.2e}"
+    return minus(f"{p:.2e}")
 
 
 def p_equals(p: float, log_p: float | None = None) -> str:
@@ -60,17 +106,18 @@ def fmt_num(x: float, decimals: int | None = None) -> str:
     Examples
     --------
     >>> fmt_num(501.2345, 2), fmt_num(float("inf")), fmt_num(-0.000012345)
-    ('501.23', '∞', '-1.234e-05')
+    ('501.23', '∞', '−1.234e−05')
     """
     if math.isnan(x):
         return "n/a"
     if math.isinf(x):
         return "∞" if x > 0 else "−∞"
     if decimals is not None:
-        return f"{x:.{decimals}f}"
+        return fmt_fixed(x, decimals)
     if x != 0 and (abs(x) >= 1e6 or abs(x) < 1e-3):
-        return f"{x:.4g}"
-    return f"{x:.4g}" if abs(x) >= 1000 else f"{x:.4f}".rstrip("0").rstrip(".") or "0"
+        return minus(f"{x:.4g}")
+    text = f"{x:.4g}" if abs(x) >= 1000 else f"{x:.4f}".rstrip("0").rstrip(".") or "0"
+    return minus(text) if text != "-0" else "0"
 
 
 def fmt_df(df: float) -> str:
@@ -81,7 +128,10 @@ def fmt_df(df: float) -> str:
     """
     if math.isinf(df):
         return "∞"
-    return f"{df:.0f}" if float(df).is_integer() else f"{df:.2f}"
+    if math.isnan(df):
+        return "n/a"
+    whole = round(df)
+    return f"{whole:.0f}" if abs(df - whole) <= 1e-9 * max(1.0, abs(df)) else f"{df:.2f}"
 
 
 def fmt_level(level: float) -> str:

@@ -7,14 +7,17 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-import numpy as np
-
 from .format import fmt_level, fmt_num
 
 
 @dataclass(frozen=True)
 class GroupStats:
-    """Descriptive statistics of one group (or of the paired differences)."""
+    """Descriptive statistics of one group (or of the paired differences).
+
+    For a trimmed-means result, ``trimmed_mean`` and ``winsorised_sd`` hold the group's
+    trimmed mean and winsorised SD and ``trimmed_se`` Yuen's standard error of the trimmed
+    mean; they are ``None`` otherwise.
+    """
 
     label: str
     n: int
@@ -22,6 +25,9 @@ class GroupStats:
     mean: float
     sd: float
     se: float
+    trimmed_mean: float | None = None
+    winsorised_sd: float | None = None
+    trimmed_se: float | None = None
 
 
 @dataclass(frozen=True)
@@ -38,5 +44,5 @@ class Effect:
     level: float
 
     def __str__(self) -> str:
-        lo, hi = (fmt_num(round(v, 3), 3) if np.isfinite(v) else fmt_num(v) for v in self.ci)
-        return f"{self.name} = {self.value:.3f} ({fmt_level(self.level)} CI {lo} to {hi})"
+        lo, hi = (fmt_num(v, 3) for v in self.ci)
+        return f"{self.name} {fmt_num(self.value, 3)} ({fmt_level(self.level)} CI {lo} to {hi})"

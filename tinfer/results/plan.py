@@ -12,13 +12,14 @@ from typing import Any
 
 import numpy as np
 
+from .card import Card
 from .format import fmt_level, fmt_sig
 
 GRID_TEXT_ROWS = 20  # grid points listed in the text form; to_frame() has them all
 
 
 @dataclass(frozen=True)
-class PlanResult:
+class PlanResult(Card):
     """The answer of :func:`tinfer.plan`: sample size, power or smallest detectable effect.
 
     Holds numbers and words only. For a single plan each number is a scalar; when ``n``,
@@ -28,7 +29,7 @@ class PlanResult:
     There is deliberately no "observed power" of a finished test: computed at the observed
     effect, power is a one-to-one restatement of the p-value (p = 0.05 always gives about
     50% for a two-sided test), so it adds no information about the data. To judge what a
-    finished study could have detected, use ``result.sensitivity()``, which fixes the
+    finished study could have detected, use ``result.detectable_effect()``, which fixes the
     design (n, level, side) and reports the smallest effect detected with a chosen power.
 
     Attributes
@@ -155,10 +156,8 @@ class PlanResult:
     def __repr__(self) -> str:
         return f"<PlanResult {self.design}: solved {self.solved}>\n{self}"
 
-    def _repr_mimebundle_(self, include=None, exclude=None) -> dict[str, str]:
-        from ..display.render import mimebundle
-
-        return mimebundle(self, text=repr(self))
+    def plain_text(self) -> str:
+        return repr(self)
 
     def explore(self):
         """Sliders for the given quantities (effect, n, power), level and ratio, solved live.
@@ -330,10 +329,7 @@ def detail_lines(p: PlanResult) -> list[str]:
         lines.append(f"equivalence margins {margin_words(p)}")
     target = f" (target {fmt_sig(p.target)})" if p.target is not None else ""
     lines.append(f"power {p.power:.4f}{target}")
-    lines.append(
-        f"significance {fmt_level(1 - p.level)}, {p.side}, df {p.df:g}, "
-        f"noncentrality {fmt_sig(p.ncp, 4)}"
-    )
+    lines.append(f"significance level {fmt_level(1 - p.level)}, {p.side}")
     return lines
 
 

@@ -16,11 +16,12 @@ import numpy as np
 from ..checks import check_df, check_level, check_side, fail, is_real, shown
 from ..core import distribution as dist
 from ..errors import ParameterError
+from .card import Card
 from .format import fmt_df, fmt_num, fmt_p
 
 
 @dataclass(frozen=True)
-class TDistribution:
+class TDistribution(Card):
     """Student's t distribution with ``df`` degrees of freedom (``math.inf`` for the normal).
 
     Examples
@@ -180,7 +181,7 @@ class TDistribution:
         >>> import tinfer
         >>> print(tinfer.tdist(12).show(low=-1, high=2, percentiles=(0.975,)))
         t distribution, df = 12
-          area P(-1 < T < 2) = 0.797
+          area P(−1 < T < 2) = 0.797
           97.5% percentile: 2.1788
           mean: 0 (exists for df > 1)
           variance: 1.2 (df / (df − 2), finite for df > 2)
@@ -197,14 +198,9 @@ class TDistribution:
             )
         return TDistView(self, low, high, tuple(float(q) for q in percentiles))
 
-    def _repr_mimebundle_(self, include=None, exclude=None):
-        from ..display.render import mimebundle
-
-        return mimebundle(self)
-
 
 @dataclass(frozen=True)
-class TDistView:
+class TDistView(Card):
     """A t distribution with an area and percentiles to show; made by ``TDistribution.show``.
 
     Attributes
@@ -262,11 +258,6 @@ class TDistView:
     def __str__(self) -> str:
         return "\n".join(self.lines())
 
-    def _repr_mimebundle_(self, include=None, exclude=None):
-        from ..display.render import mimebundle
-
-        return mimebundle(self)
-
 
 def _out(a):
     a = np.asarray(a)
@@ -283,7 +274,7 @@ def area_words(low: float | None, high: float | None) -> str:
     """The requested area in symbols, e.g. ``P(-1 < T < 2)``.
 
     >>> area_words(None, 2.0), area_words(-1.0, 2.0)
-    ('P(T < 2)', 'P(-1 < T < 2)')
+    ('P(T < 2)', 'P(−1 < T < 2)')
     """
     if low is None and high is None:
         return "P(−∞ < T < ∞)"

@@ -14,9 +14,10 @@ from typing import Any
 import numpy as np
 
 from ..core.summary import Summary
-from . import provenance
+from . import provenance, sentences
+from .card import Card
 from .equivalence import Equivalence
-from .format import decimals_for, fmt_df, fmt_level, fmt_num, p_equals
+from .format import decimals_for, fmt_num
 from .parts import Effect, GroupStats
 from .words import interval_words
 
@@ -24,7 +25,7 @@ DESIGNS = ("one-sample", "paired", "two-sample")
 
 
 @dataclass(frozen=True, eq=False)
-class TResult:
+class TResult(Card):
     """The full answer of one t procedure.
 
     Attributes
@@ -120,37 +121,12 @@ class TResult:
         return bool(self.p < 1.0 - self.level)
 
     def headline(self) -> str:
-        """One sentence: direction, estimate with its interval, and the verdict on ``null``."""
-        if self.design == "one-sample":
-            lead = f"The {self.location} of {self.variable} is {self.fmt(self.estimate)}"
-        elif self.design == "paired":
-            lead = (
-                f"Paired differences in {self.variable} ({self.comparison}) average "
-                f"{self.fmt(self.estimate)}" + (f" ({self.location})" if self.trim else "")
-            )
-        else:
-            lead = (
-                f"The difference in {self.location} {self.variable}, {self.labels[0]} minus "
-                f"{self.labels[1]}, is {self.fmt(self.estimate)}"
-            )
-        eq = self.equivalence
-        if eq is not None:
-            label = {"equivalence": "TOST"}.get(eq.kind, eq.kind)
-            return (
-                f"{lead} ({eq.interval_words(self.fmt)}); {eq.conclusion} "
-                f"({label} {p_equals(eq.p, eq.log_p)})."
-            )
-        target = self.fmt(self.null)
-        if self.design != "one-sample" and self.null == 0:
-            target = "no difference"
-        verdict = (
-            f"the data are not consistent with {target}"
-            if self.significant
-            else f"the data are consistent with {target}"
-        )
-        return f"{lead} ({self.interval_words(self.level)}); {verdict} " + (
-            f"({p_equals(self.p, self.log_p)})."
-        )
+        """One sentence: the estimate with its interval, and the verdict with its p-value."""
+        return sentences.headline(self)
+
+    def question(self) -> str:
+        """The question the test answers, as the test was run (side, margin, trimming)."""
+        return sentences.question(self)
 
     def interval_words(self, level: float | None = None) -> str:
         """The confidence interval in words, "95% CI 1.2 to 3.4" (without ``level``: "1.2 to
@@ -160,28 +136,44 @@ class TResult:
     # ------------------------------------------------------------------ tables
     def to_dict(self) -> dict[str, Any]:
         """The numbers and words as a flat dict of Python scalars."""
-        return {
-            "design": self.design,
-            "variable": self.variable,
-            "comparison": self.comparison,
-            "estimate": self.estimate,
-            "se": self.se,
-            "ci_low": self.ci[0],
-            "ci_high": self.ci[1],
-            "level": self.level,
-            "side": self.side,
-            "null": self.null,
-            "t": self.t,
-            "df": self.df,
-            "p": self.p,
-            "log_p": self.log_p,
-            "effect_name": self.effect.name,
-            "effect": self.effect.value,
-            "effect_ci_low": self.effect.ci[0],
-            "effect_ci_high": self.effect.ci[1],
-            "method": self.method,
-            "trim": self.trim,
-        } | (self.equivalence.to_dict() if self.equivalence is not None else {})
+        return (
+            {
+                "design": self.design,
+                "variable": self.variable,
+                "comparison": self.comparison,
+                "estimate": self.estimate,
+                "se": self.se,
+                "ci_low": self.ci[0],
+                "ci_high": self.ci[1],
+                "level": self.level,
+                "side": self.side,
+                "null": self.null,
+                "t": self.t,
+                "df": self.df,
+                "p": self.p,
+                "log_p": self.log_p,
+                "effect_name": self.effect.name,
+                "effect": self.effect.value,
+                "effect_ci_low": self.effect.ci[0],
+                "effect_ci_high": self.effect.ci[1],
+                "method": self.method,
+                "trim": self.trim,
+            }
+            | self._group_columns()
+            | (self.equivalence.to_dict() if self.equivalence is not None else {})
+        )
+
+    def _group_columns(self) -> dict[str, Any]:
+        """n, mean and SD per group, named as batch tables name them: ``n_a, mean_a, sd_a,
+        n_b, ...`` for two samples, ``n, mean, sd`` otherwise (of the differences, paired)."""
+        if self.design == "two-sample":
+            named = zip(("_a", "_b"), self.groups, strict=True)
+        else:
+            named = [("", self.groups[-1])]
+        out: dict[str, Any] = {}
+        for suffix, g in named:
+            out |= {f"n{suffix}": g.n, f"mean{suffix}": g.mean, f"sd{suffix}": g.sd}
+        return out
 
     def to_frame(self):
         """One tidy row with every number of the test (a pandas DataFrame)."""
@@ -277,7 +269,7 @@ class TResult:
         return explore_result(self)
 
     # ------------------------------------------------------------------ planning
-    def sensitivity(self, power: float = 0.8):
+    def detectable_effect(self, power: float = 0.8):
         """Smallest standardised effect this design (its n, level and side) detects with ``power``.
 
         Returns a :class:`~tinfer.PlanResult` solved for ``effect`` (exact noncentral t;
@@ -288,12 +280,12 @@ class TResult:
         --------
         >>> import tinfer
         >>> r = tinfer.from_summary(n=(12, 15), mean=(5.1, 4.3), sd=(1.2, 1.5))
-        >>> round(r.sensitivity(0.8).effect, 3)
+        >>> round(r.detectable_effect(0.8).effect, 3)
         1.129
         """
-        from ..analyses.plan import sensitivity_of
+        from ..analyses.plan import detectable_effect_of
 
-        return sensitivity_of(self, power=power)
+        return detectable_effect_of(self, power=power)
 
     def plan(
         self,
@@ -324,35 +316,7 @@ class TResult:
 
     # ------------------------------------------------------------------ text
     def __str__(self) -> str:
-        lines = [f"{self.method}: {self.comparison}", self.headline()]
-        lo, hi = self.ci
-        lines.append(
-            f"  estimate {self.fmt(self.estimate)}   se {fmt_num(self.se, self.decimals + 1)}"
-            f"   {fmt_level(self.level)} CI [{fmt_num(lo, self.decimals)}, "
-            f"{fmt_num(hi, self.decimals)}]"
-        )
-        lines.append(
-            f"  t = {self.t:.3f}   df = {fmt_df(self.df)}   {p_equals(self.p, self.log_p)}"
-            f" ({self.side})"
-        )
-        lines.append(f"  {self.effect}")
-        for g in self.groups:
-            miss = f", {g.n_missing} missing dropped" if g.n_missing else ""
-            lines.append(
-                f"  {g.label}: n = {g.n}{miss}, mean {fmt_num(g.mean, self.decimals)}, "
-                f"sd {fmt_num(g.sd, self.decimals)}"
-            )
-        lines.append(f"  H0: {self.null_hypothesis}.  H1: {self.alternative}.")
-        eq = self.equivalence
-        for _, test in eq.tests if eq is not None else ():
-            lines.append(
-                f"  one-sided test, H0 {test.null_hypothesis}: t = {test.t:.3f}, "
-                f"{p_equals(test.p, test.log_p)}"
-            )
-        if eq is not None and eq.note:
-            lines.append(f"  {eq.note}")
-        lines.extend(f"  note: {w}" for w in self.warnings)
-        return "\n".join(lines)
+        return "\n".join(sentences.text_lines(self))
 
     def __repr__(self) -> str:
         return f"<TResult {self.design}>\n{self}"
@@ -375,26 +339,3 @@ class TResult:
         from ..display.ttest import result_chart
 
         return result_chart(self, normal)
-
-    def to_html(self, chart: bool = True) -> str:
-        """The HTML card as a string (the same as the notebook shows), for reports and files.
-
-        Self-contained: the stylesheet is inlined, the chart is inline SVG (``chart=False``
-        leaves it out), and there is no JavaScript.
-
-        Examples
-        --------
-        >>> import tinfer
-        >>> r = tinfer.from_summary(n=12, mean=5.4, sd=1.1, null=5.0)
-        >>> page = r.to_html(chart=False)
-        >>> page.startswith('<div class="tinfer-card">') and "<script" not in page
-        True
-        """
-        from ..display.render import html
-
-        return html(self, chart=chart)
-
-    def _repr_mimebundle_(self, include=None, exclude=None):
-        from ..display.render import mimebundle
-
-        return mimebundle(self)

@@ -7,7 +7,7 @@ Import this module once to register it::
 
     ddf = dd.read_parquet("fills/*.parquet")
     r = ddf.tinfer.two_sample("fill_g", by="line")
-    m = ddf.tinfer.compare("fill_g", by="line", within="shift", adjust="bh")
+    m = ddf.tinfer.compare("fill_g", by="line", within="shift", adjust="benjamini-hochberg")
 
 To run on a cluster, create a ``dask.distributed.Client`` first; the accessor uses
 whatever scheduler is active::
