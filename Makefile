@@ -3,18 +3,31 @@ PYTHON ?= python3
 VENV   := .venv
 PY     := $(VENV)/bin/python
 STAMP  := $(VENV)/.installed
+DEMO   := $(VENV)/.installed-demo
+PIP    := $(PY) -m pip install -qq --disable-pip-version-check --progress-bar off
 RECORDS := records
 CHROMIUM := /usr/bin/chromium
 
-.PHONY: setup demo test lint unit notebooks-check docs browser-deps lab notebooks bench readme-image clean
+.PHONY: setup setup-demo demo test lint unit notebooks-check docs browser-deps lab notebooks bench readme-image clean
 
+# `make test` needs the whole developer tool chain; `make demo` only the package with its
+# display extra and a notebook runner (the "demo" extra), a much smaller environment.
 setup: $(STAMP)
+setup-demo: $(DEMO)
 
-$(STAMP): pyproject.toml
+$(VENV)/bin/python:
 	$(PYTHON) -m venv $(VENV)
-	$(PY) -m pip install --quiet --upgrade pip
-	$(PY) -m pip install --quiet -e ".[dev]"
-	touch $(STAMP)
+	$(PIP) --upgrade pip
+
+$(DEMO): pyproject.toml | $(VENV)/bin/python
+	@echo "Installing tinfer with its display extra and a notebook runner into $(VENV) ..."
+	$(PIP) -e ".[demo]"
+	touch $(DEMO)
+
+$(STAMP): pyproject.toml | $(VENV)/bin/python
+	@echo "Installing tinfer with every developer tool into $(VENV) ..."
+	$(PIP) -e ".[dev]"
+	touch $(STAMP) $(DEMO)
 
 # Debian's Chromium for the browser checks (no browser download by any test tool).
 browser-deps:
@@ -24,7 +37,7 @@ browser-deps:
 	fi
 
 ## The main job: run every demo notebook into a shareable analysis record (.ipynb + offline HTML).
-demo: setup
+demo: setup-demo
 	$(PY) -m tinfer.records notebooks $(RECORDS)
 
 lint: setup

@@ -175,3 +175,26 @@ def rows(design: str, a, b, null, level, side: str, pooled: bool, effect_ci: boo
         n_b, hi_b, lo_b, ssd_b = b
         return two_sample(sa, Summary(n_b, hi_b, ssd_b, lo_b), pooled=pooled, **opts)
     return one_sample(sa, **opts)
+
+
+def effect_interval_rows(design: str, a, b, null, level, side: str):
+    """Only the effect-size limits of :func:`rows` (the deferred part of a batch table).
+
+    Same arguments; returns the lower and upper limits of Cohen's d, d_z or Hedges' g from
+    the noncentral t, without recomputing p-values and mean intervals.
+    """
+    n_a, hi_a, lo_a, ssd_a = (np.asarray(v, float) for v in a)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        if design == "two-sample":
+            n_b, hi_b, lo_b, ssd_b = (np.asarray(v, float) for v in b)
+            df = n_a + n_b - 2.0
+            scale = np.sqrt(1.0 / n_a + 1.0 / n_b)
+            t_eff = ((hi_a - hi_b) + (lo_a - lo_b) - null) / (np.sqrt((ssd_a + ssd_b) / df) * scale)
+            correction = hedges_j(df)
+        else:
+            df = n_a - 1.0
+            scale = 1.0 / np.sqrt(n_a)
+            t_eff = ((hi_a - null) + lo_a) / np.sqrt(ssd_a / df / n_a)
+            correction = 1.0
+    low, high = ncp_interval(t_eff, df, level, side)
+    return correction * low * scale, correction * high * scale

@@ -18,7 +18,6 @@ from ..results.batch import BatchResult
 from ..results.ttest import TResult
 from . import ttest
 from .batch import compare_frame
-from .columns import column as column_of
 from .columns import finite, one_column, to_float
 
 Margin = float | tuple[float, float] | None
@@ -149,8 +148,7 @@ class TinferFrameAccessor:
             a, b = (one_column(self._obj, c) for c in column)
             variable = f"{column[0]} vs {column[1]}"
             return ttest.two_sample(a, b, variable, func="two_sample", **opts)
-        a, b = ttest.two_groups(self._obj, column, by, groups)
-        no_key = int(column_of(self._obj, by).isna().sum())
+        a, b, no_key = ttest.two_groups(self._obj, column, by, groups)
         if no_key:
             opts["warnings"] = (f"{no_key} row(s) with a missing {by!r} value were not used.",)
         return ttest.two_sample(a, b, str(column), func="two_sample", **opts)

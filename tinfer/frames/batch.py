@@ -88,10 +88,12 @@ def _is_pair_of_labels(p) -> bool:
     )
 
 
-def choose_arms(levels: np.ndarray, present: np.ndarray, by, groups) -> tuple[int, int]:
+def choose_arms(
+    levels: np.ndarray, present: np.ndarray, by, groups, what: str = WHAT
+) -> tuple[int, int]:
     """Indices into ``levels`` of the two compared levels among those ``present``."""
     present_idx = np.flatnonzero(present)
-    first, second = choose_two([levels[i] for i in present_idx], by, groups, WHAT)
+    first, second = choose_two([levels[i] for i in present_idx], by, groups, what)
     return int(present_idx[first]), int(present_idx[second])
 
 

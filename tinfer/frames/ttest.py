@@ -16,8 +16,9 @@ from ..analyses import build, group_stats
 from ..core.summary import Summary
 from ..errors import DataError
 from ..results.ttest import TResult
+from .batch import choose_arms
 from .columns import Sample, column, finite, to_float
-from .levels import choose_two, label_pair, levels_text, ungroupable
+from .levels import choose_two, group_codes, label_pair, levels_text, ungroupable
 
 
 def one_sample(sample: Sample, variable: str, *, func: str, **opts) -> TResult:
@@ -77,16 +78,25 @@ def _two_levels(key: pd.Series, by: Hashable, groups: Sequence | None, what: str
 
 def two_groups(
     df: pd.DataFrame, value: Hashable, by: Hashable, groups: Sequence | None
-) -> tuple[Sample, Sample]:
-    """Split ``value`` by the two levels of ``by`` (or the two levels named in ``groups``)."""
+) -> tuple[Sample, Sample, int]:
+    """Split ``value`` by the two levels of ``by`` (or the two levels named in ``groups``).
+
+    The group column is turned into integer codes once (category codes, compact integer
+    offsets, or ``pandas.factorize``), whatever its dtype, and each group is one mask over
+    the codes. Returns both samples (their values are fresh read-only arrays the result can
+    keep) and the number of rows with a missing group.
+    """
     vals = to_float(column(df, value), f"Column {value!r}")
-    key = column(df, by)
-    chosen = _two_levels(key, by, groups, "two-sample test")
+    codes, levels = group_codes(column(df, by))
+    wide = codes.dtype if len(levels) < np.iinfo(codes.dtype).max else np.intp
+    counts = np.bincount(codes.astype(wide, copy=False) + 1, minlength=len(levels) + 1)
+    first, second = choose_arms(levels, counts[1:] > 0, by, groups, "two-sample test")
     out = []
-    for g, text in zip(chosen, label_pair(*chosen), strict=True):
-        mask = (key == g).to_numpy(dtype=bool, na_value=False)
-        out.append(finite(vals[mask], text, f"Column {value!r} in group {text}"))
-    return out[0], out[1]
+    for k, text in zip((first, second), label_pair(levels[first], levels[second]), strict=True):
+        sample = finite(vals[codes == k], text, f"Column {value!r} in group {text!r}")
+        sample.values.setflags(write=False)  # a fresh array: the result keeps it as it is
+        out.append(sample)
+    return out[0], out[1], int(counts[0])
 
 
 def paired_wide(df: pd.DataFrame, first: Hashable, second: Hashable) -> tuple[Sample, Sample, int]:

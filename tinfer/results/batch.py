@@ -160,18 +160,16 @@ class BatchResult(Card):
         high = np.full(self.n_rows, np.nan)
         ok = self.testable
         if ok.any():
-            c = self._rerun(ok, effect_ci=True)
-            low[ok], high[ok] = c.effect_low, c.effect_high
+            low[ok], high[ok] = self._effect_limits(ok)
         return frozen(low), frozen(high)
 
-    def _rerun(self, rows, effect_ci: bool):
-        """The procedure again on some rows (for the deferred effect-size intervals)."""
+    def _effect_limits(self, rows):
+        """The effect-size limits of some rows (the deferred part of the table)."""
         b = None
         if self.design == "two-sample":
             b = (self.n_b[rows], self.mean_b[rows], self.mean_lo_b[rows], self.ssd_b[rows])
         a = (self.n_a[rows], self.mean_a[rows], self.mean_lo_a[rows], self.ssd_a[rows])
-        opts = (self.null, self.level, self.side, self.pooled, effect_ci)
-        return procedures.rows(self.design, a, b, *opts)
+        return procedures.effect_interval_rows(self.design, a, b, self.null, self.level, self.side)
 
     def segment_labels(self) -> list[str]:
         """Each row's segment as text, ``key=value`` pairs joined by commas."""
