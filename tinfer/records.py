@@ -35,6 +35,8 @@ def execute(path: Path, timeout: int = 600):
         kernel_name="python3",
         resources={"metadata": {"path": str(path.parent)}},
         store_widget_state=True,
+        # the kernel's own start-up warnings are not part of the record
+        extra_arguments=["--IPKernelApp.log_level=ERROR"],
     )
     client.execute()
     return nb

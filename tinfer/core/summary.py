@@ -46,13 +46,11 @@ class Summary:
         if x.size == 0:  # no values (all missing): callers report it, numpy need not warn
             nan = np.asarray(np.nan)
             return cls(np.asarray(0.0), nan, np.asarray(0.0), np.asarray(0.0))
-        with np.errstate(over="ignore", invalid="ignore"):  # callers check the range
+        with np.errstate(over="ignore", invalid="ignore", under="ignore"):  # callers check
             m0 = x.mean()
-            dev = x - m0
-            s1 = dev.sum()
-        with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+            s1, ss = _deviation_sums(x, m0)
             corr = s1 / x.size
-            ssd = max(dev @ dev - s1 * corr, 0.0)
+            ssd = max(ss - s1 * corr, 0.0)
             mean = m0 + corr
             lo = (m0 - mean) + corr  # exact remainder (Fast2Sum: |corr| is tiny next to m0)
         return cls(np.asarray(float(x.size)), np.asarray(mean), np.asarray(ssd), np.asarray(lo))
@@ -101,3 +99,23 @@ def merge(a: Summary, b: Summary) -> Summary:
         ssd = a.ssd + b.ssd + np.where(n > 0, delta * delta * a.n * frac, 0.0)
     ssd = np.where((a.n == 0) | (b.n == 0), a.ssd + b.ssd, ssd)
     return Summary(np.asarray(n), np.asarray(mean), np.asarray(ssd))
+
+
+#: Values per block of the second pass: the deviations of a block fit in the cache, so no
+#: array the size of the data is made.
+BLOCK = 1 << 15
+
+
+def _deviation_sums(x: np.ndarray, m0: float) -> tuple[float, float]:
+    """``sum(x - m0)`` and ``sum((x - m0)^2)`` block by block, with one small buffer."""
+    if x.size <= BLOCK:
+        dev = x - m0
+        return float(dev.sum()), float(dev @ dev)
+    buf = np.empty(BLOCK)
+    s1 = ss = 0.0
+    for start in range(0, x.size, BLOCK):
+        part = x[start : start + BLOCK]
+        dev = np.subtract(part, m0, out=buf[: part.size])
+        s1 += float(dev.sum())
+        ss += float(dev @ dev)
+    return s1, ss

@@ -74,8 +74,11 @@ def to_float(series: pd.Series, what: str) -> np.ndarray:
 
 def finite(values: np.ndarray, label: str, what: str) -> Sample:
     """Drop missing values (NaN) and reject infinite ones."""
+    with np.errstate(over="ignore", invalid="ignore"):
+        if np.isfinite(np.add.reduce(values)):  # one fast pass: NaN and inf spoil the sum
+            return Sample(label, values, 0)
     ok = np.isfinite(values)
-    if ok.all():
+    if ok.all():  # finite values whose sum overflowed
         return Sample(label, values, 0)
     if np.isinf(values).any():
         k = int(np.isinf(values).sum())
