@@ -14,6 +14,7 @@ import time
 import mpmath as mp
 import numpy as np
 import pytest
+from scipy import special
 
 from tinfer.core.effects import hedges_j, ncp_interval
 
@@ -139,3 +140,23 @@ class TestHedgesJ:
             assert abs(float(hedges_j(df)) - (1 - 3 / (4 * df - 1))) < tol
         assert 1 - float(hedges_j(1e8)) < 1e-8
         assert np.all(np.diff(hedges_j(np.array([2.0, 5.0, 20.0, 100.0]))) > 0)
+
+
+class TestFastInversion:
+    """The quick Newton-secant inversion agrees with the bracketed one it replaced."""
+
+    @pytest.mark.parametrize("df_range", [(3.0, 10.0), (20.0, 60.0), (500.0, 5000.0)])
+    def test_same_limits_as_the_bracketed_method(self, df_range):
+        """Over 2,000 random (df, t) pairs both methods give the same limit to 1e-10
+        relative; each solves scipy's nctdtr = prob (reference library)."""
+        from tinfer.core.effects import _ncp_bracketed, _ncp_for_cdf
+
+        rng = np.random.default_rng(17)
+        df = rng.uniform(*df_range, 2000)
+        t = rng.normal(0.0, 3.0, 2000)
+        for prob in (0.025, 0.975):
+            fast = _ncp_for_cdf(df, t, np.full(2000, prob))
+            slow = _ncp_bracketed(df, t, np.full(2000, prob))
+            rel = np.abs(fast - slow) / np.maximum(np.abs(slow), 1e-300)
+            assert rel.max() < 1e-10
+            np.testing.assert_allclose(special.nctdtr(df, fast, t), prob, rtol=0, atol=1e-12)

@@ -4,8 +4,10 @@ The interval for a standardised mean difference inverts the noncentral t distrib
 in its noncentrality parameter (Steiger and Fouladi 1997; Cumming and Finch 2001):
 the lower limit is the noncentrality under which the observed t sits at the upper
 ``alpha/2`` point, the upper limit the one under which it sits at the lower ``alpha/2``
-point. The limits are found by scipy's ``nctdtrinc`` and then polished by a bracketed
-Illinois (regula falsi) iteration on ``nctdtr`` until they are exact to rounding.
+point. The limits start from a normal approximation (Abramowitz and Stegun 26.7.10), take
+one Newton step and then secant steps on scipy's exact ``nctdtr`` (two evaluations at large
+df); the few that do not converge fall back to scipy's ``nctdtrinc`` polished by a bracketed
+Illinois (regula falsi) iteration until they are exact to rounding.
 Beyond |t| of about 2e5, where scipy's noncentral t gives nan (or does not return), the
 limits come from the large-noncentrality limit ``P(T <= t) ~ P(S >= lam / t)`` with
 ``S^2 ~ chi2(df) / df``, whose relative error is of order 1 / |t|.
