@@ -66,6 +66,18 @@ class TestNcpInterval:
         assert abs(float(mp_nct_cdf(t, df, lo)) - (1 - alpha / 2)) < 1e-12
         assert abs(float(mp_nct_cdf(t, df, hi)) - alpha / 2) < 1e-12
 
+    @pytest.mark.parametrize(("t", "df", "level"), [CASES[0], CASES[1], CASES[5]])
+    def test_limits_match_a_50_digit_root(self, t, df, level):
+        """Each limit is within 1e-10 relative of the root of the mpmath cdf found at 50 digits
+        (mpmath quadrature and secant root finding, reference library)."""
+        lo, hi = (float(v) for v in ncp_interval(t, df, level, "two-sided"))
+        alpha = 1 - level
+        with mp.workdps(50):
+            for got, prob in ((lo, 1 - alpha / 2), (hi, alpha / 2)):
+                start = (mp.mpf(got) * (1 - 1e-6) - 1e-9, mp.mpf(got) * (1 + 1e-6) + 1e-9)
+                root = mp.findroot(lambda lam, p=prob: mp_nct_cdf(t, df, lam) - p, start)
+                assert abs(got - float(root)) <= 1e-10 * abs(float(root))
+
     @pytest.mark.parametrize(("t", "df", "level"), CASES[:4])
     def test_one_sided_bounds(self, t, df, level):
         """'upper' gives a lower bound at 1 - alpha, 'lower' an upper bound at alpha (mpmath)."""
