@@ -60,12 +60,28 @@ adjust : {{"holm", "hochberg", "benjamini-hochberg", "benjamini-yekutieli", "non
 rate : float, default 0.05
     Error rate (family-wise for Holm and Hochberg, false discovery rate for BH
     and BY): a row is a discovery when its adjusted p-value is at most ``rate``.""",
+    "method": """\
+method : str, optional
+    The family of comparisons, by its published name: "games-howell" (all pairs,
+    unequal variances; the default without ``against``), "tukey-kramer" (all pairs,
+    pooled variance), "dunnett" (each level against ``against``, pooled variance;
+    the default with it), or separate Welch tests adjusted by "holm", "hochberg",
+    "benjamini-hochberg" ("bh"), "benjamini-yekutieli" ("by") or "none".""",
+    "against": """\
+against : label, optional
+    A control level: compare every other level with it, not every pair.""",
+    "pairwise_side": """\
+side : {{"two-sided", "upper", "lower"}}
+    "upper": each level exceeds the control; "lower": falls below it. One-sided
+    families need ``against`` and Dunnett or separate tests; the studentized range
+    (Games-Howell, Tukey-Kramer) is two-sided only.""",
 }
 
 #: Slots that stand for several keywords, in order.
 GROUPS = {
     "margin_options": ("margin", "margin_units", "worse", "superior"),
     "batch_options": ("adjust", "rate", "level", "side", "pooled"),
+    "pairwise_options": ("method", "against", "level", "pairwise_side"),
 }
 
 #: Words filled in where a caller gives none.

@@ -15,14 +15,12 @@ limits come from the large-noncentrality limit ``P(T <= t) ~ P(S >= lam / t)`` w
 
 from __future__ import annotations
 
-import functools
-import os
-from concurrent.futures import ThreadPoolExecutor
 from functools import partial
 
 import numpy as np
 from scipy import special
 
+from . import parallel
 from .distribution import log_gamma_half_ratio
 
 
@@ -117,25 +115,12 @@ def _normal_start(df, t, prob) -> tuple[np.ndarray, np.ndarray]:
 PARALLEL_MIN = 1024
 
 
-@functools.cache
-def _pool(workers: int) -> ThreadPoolExecutor:
-    return ThreadPoolExecutor(max_workers=workers, thread_name_prefix="tinfer-nct")
-
-
 def _nct_cdf(df: np.ndarray, lam: np.ndarray, t: np.ndarray) -> np.ndarray:
-    """scipy's noncentral t CDF on 1-d arrays, split over up to four threads when large."""
-    workers = min(os.cpu_count() or 1, 4)
-    if lam.size < PARALLEL_MIN or workers < 2:
+    """scipy's noncentral t CDF on 1-d arrays, split over threads when large."""
+    if lam.size < PARALLEL_MIN:
         return special.nctdtr(df, lam, t)
-    out = np.empty(lam.size)
-    bounds = np.linspace(0, lam.size, workers + 1).astype(int)
-
-    def run(k: int) -> None:
-        sl = slice(bounds[k], bounds[k + 1])
-        out[sl] = special.nctdtr(df[sl], lam[sl], t[sl])
-
-    list(_pool(workers).map(run, range(workers)))
-    return out
+    size = lam.size
+    return parallel.chunked(lambda s: special.nctdtr(df[s], lam[s], t[s]), size, size, PARALLEL_MIN)
 
 
 def _ncp_fast(df, t, prob, max_steps: int = 12) -> tuple[np.ndarray, np.ndarray]:

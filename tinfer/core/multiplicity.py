@@ -116,3 +116,44 @@ def discoveries(p_adjusted, rate: float) -> np.ndarray:
     q = np.asarray(p_adjusted, dtype=np.float64)
     with np.errstate(invalid="ignore"):
         return q <= rate
+
+
+def adjust_rows(p, method: str = "holm") -> np.ndarray:
+    """:func:`adjust` applied to every row of a 2-d array separately (one family per row).
+
+    Vectorised over rows; NaN entries stay NaN and do not count in their row's ``m``.
+
+    Examples
+    --------
+    >>> adjust_rows([[0.01, 0.04, 0.03], [0.02, float("nan"), 0.5]], "holm").tolist()
+    [[0.03, 0.06, 0.06], [0.04, nan, 0.5]]
+    """
+    method = check_method(method, "adjust")
+    p = np.atleast_2d(np.asarray(p, dtype=np.float64))
+    if method == "none":
+        return p.copy()
+    width = p.shape[1]
+    order = np.argsort(np.where(np.isnan(p), np.inf, p), axis=1, kind="stable")
+    s = np.take_along_axis(p, order, axis=1)
+    m = (~np.isnan(p)).sum(axis=1, keepdims=True).astype(np.float64)
+    rank = np.arange(1, width + 1, dtype=np.float64)[None, :]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        if method == "holm":
+            adj = np.fmax.accumulate(np.minimum((m - rank + 1.0) * s, 1.0), axis=1)
+        else:
+            if method == "hochberg":
+                raw = (m - rank + 1.0) * s
+            else:
+                factor = m / rank
+                if method == "benjamini-yekutieli":
+                    harmonic = np.cumsum(1.0 / rank, axis=1)
+                    factor = factor * np.take_along_axis(
+                        harmonic, np.maximum(m.astype(np.intp) - 1, 0), axis=1
+                    )
+                raw = factor * s
+            raw = np.where(np.isnan(s), np.inf, raw)
+            adj = np.minimum.accumulate(raw[:, ::-1], axis=1)[:, ::-1]
+        adj = np.where(np.isnan(s), np.nan, np.minimum(adj, 1.0))
+    out = np.empty_like(adj)
+    np.put_along_axis(out, order, adj, axis=1)
+    return out

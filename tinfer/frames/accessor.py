@@ -15,10 +15,12 @@ import pandas as pd
 from ..docstrings import fill_params
 from ..errors import DataError
 from ..results.batch import BatchResult
+from ..results.pairwise import PairwiseResult
 from ..results.ttest import TResult
 from . import ttest
 from .batch import compare_frame
 from .columns import finite, one_column, to_float
+from .pairwise import pairwise_frame
 
 Margin = float | tuple[float, float] | None
 
@@ -306,6 +308,54 @@ class TinferFrameAccessor:
             side=side,
             pooled=pooled,
         )
+
+    @fill_params()
+    def pairwise(
+        self,
+        column: Hashable,
+        by: Hashable,
+        *,
+        against: Hashable | None = None,
+        method: str | None = None,
+        level: float = 0.95,
+        side: str = "two-sided",
+        units: str | None = None,
+    ) -> PairwiseResult:
+        """Compare the means of every level of ``by`` as one family of comparisons.
+
+        Every pair of levels, or every level against the control ``against``, with
+        intervals and p-values that hold for the whole family. Levels keep a categorical
+        column's own order and are sorted otherwise; each pair estimates the first level
+        minus the second (a level minus the control with ``against``). Equivalence margins
+        are not offered here: test a pair with ``two_sample(..., groups=(a, b), margin=m)``.
+
+        Parameters
+        ----------
+        column : column label
+            The measurements.
+        by : column label
+            The group column (two or more levels).
+        {pairwise_options}
+        {units}
+
+        Returns
+        -------
+        PairwiseResult
+
+        Examples
+        --------
+        >>> import pandas as pd, tinfer
+        >>> df = pd.DataFrame({"crisp_s": [4.1, 3.8, 4.4, 4.0, 5.2, 5.6, 4.9, 5.4, 4.3, 4.7,
+        ...                                4.5, 4.2],
+        ...                    "oven": ["A"] * 4 + ["B"] * 4 + ["C"] * 4})
+        >>> r = df.tinfer.pairwise("crisp_s", by="oven")
+        >>> r.pair_labels(), r.n_differ
+        (['A minus B', 'A minus C', 'B minus C'], 2)
+        """
+        return pairwise_frame(
+            self._obj, column, by, against=against, method=method, level=level, side=side,
+            units=units,
+        )  # fmt: skip
 
 
 @pd.api.extensions.register_series_accessor("tinfer")
