@@ -15,7 +15,7 @@ The package is built in layers, each importing only the ones below it::
 from __future__ import annotations
 
 from . import frames  # noqa: F401  (registers the accessor)
-from .analyses import from_summary, plan
+from .analyses import adjust, from_summary, pairwise_from_summary, plan
 from .display.offline import offline_charts
 from .errors import (
     DataError,
@@ -33,6 +33,7 @@ from .results import (
     Equivalence,
     GroupStats,
     OneSidedTest,
+    PairwiseResult,
     PlanResult,
     TDistribution,
     TResult,
@@ -50,6 +51,7 @@ __all__ = [
     "GroupStats",
     "MissingDependencyError",
     "OneSidedTest",
+    "PairwiseResult",
     "ParameterError",
     "PlanResult",
     "SmallSegmentWarning",
@@ -57,9 +59,11 @@ __all__ = [
     "TResult",
     "TinferError",
     "__version__",
+    "adjust",
     "compare_summaries",
     "from_summary",
     "offline_charts",
+    "pairwise_from_summary",
     "plan",
     "tdist",
 ]

@@ -12,10 +12,13 @@ from .bootstrap import bootstrap
 from .diagnostics import diagnose
 from .equivalence import check_margin, equivalence_for
 from .from_summary import from_summary
+from .multiplicity import adjust
+from .pairwise import pairwise_from_summary, run_pairwise
 from .plan import detectable_effect_of, follow_up, plan, replan
 from .ttest import build, group_stats, rebuild
 
 __all__ = [
+    "adjust",
     "bootstrap",
     "build",
     "check_margin",
@@ -27,8 +30,10 @@ __all__ = [
     "from_cube",
     "from_summary",
     "group_stats",
+    "pairwise_from_summary",
     "plan",
     "rebuild",
     "replan",
     "run_batch",
+    "run_pairwise",
 ]

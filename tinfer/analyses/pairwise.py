@@ -10,10 +10,11 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from ..checks import check_level, check_side, fail
+from ..checks import SUMMARY_RULES, check_level, check_side, fail, is_real, summary_problem
 from ..core import multiplicity
 from ..core import pairwise as core
 from ..core.summary import Summary
+from ..docstrings import fill_params
 from ..errors import DataError, ParameterError
 from ..results.pairwise import PairwiseResult
 from ..results.provenance import fingerprint, frozen, now_iso
@@ -74,28 +75,9 @@ def run_pairwise(
     level = check_level(level, func)
     side = check_side(side, func)
     labels = [str(v) for v in labels]
-    control = None
-    if against is not None:
-        hits = [i for i, v in enumerate(labels) if v == str(against)]
-        if not hits:
-            raise DataError(
-                f"The control {against!r} is not a level of {by!r}. Levels found: "
-                + ", ".join(repr(v) for v in labels)
-                + "."
-            )
-        control = hits[0]
+    control = _control_index(labels, against, by)
     method = check_method(method, against, side, func)
-    usable = [i for i, s in enumerate(summaries) if float(s.n) >= 2]
-    if len(usable) < 2 or (control is not None and control not in usable):
-        raise DataError(
-            f"{func} needs at least two levels of {by!r} with two or more values each"
-            + (f", the control {labels[control]!r} among them" if control is not None else "")
-            + ". Counts: "
-            + ", ".join(
-                f"{lab} {int(float(s.n))}" for lab, s in zip(labels, summaries, strict=True)
-            )
-            + "."
-        )
+    usable = _usable(summaries, labels, control, by, func)
     n, mean, lo, ssd = (
         np.array([[float(getattr(s, f)) if getattr(s, f) is not None else 0.0 for s in summaries]])
         for f in ("n", "mean", "mean_lo", "ssd")
@@ -145,6 +127,34 @@ def run_pairwise(
     )
 
 
+def _control_index(labels: list[str], against, by: str) -> int | None:
+    """The index of the control level, or a DataError naming the levels."""
+    if against is None:
+        return None
+    hits = [i for i, v in enumerate(labels) if v == str(against)]
+    if not hits:
+        found = ", ".join(repr(v) for v in labels)
+        raise DataError(f"The control {against!r} is not a level of {by!r}. Levels found: {found}.")
+    return hits[0]
+
+
+def _usable(summaries, labels, control, by, func) -> list[int]:
+    """Levels with two or more values; a DataError unless two (the control among them) are."""
+    usable = [i for i, s in enumerate(summaries) if float(s.n) >= 2]
+    if len(usable) < 2 or (control is not None and control not in usable):
+        counts = ", ".join(
+            f"{lab} {int(float(s.n))}" for lab, s in zip(labels, summaries, strict=True)
+        )
+        with_control = (
+            f", the control {labels[control]!r} among them" if control is not None else ""
+        )
+        raise DataError(
+            f"{func} needs at least two levels of {by!r} with two or more values each"
+            f"{with_control}. Counts: {counts}."
+        )
+    return usable
+
+
 def _warnings(method, summaries, labels, usable) -> list[str]:
     """A note when a pooled method meets clearly unequal spreads."""
     if method not in core.POOLED:
@@ -152,9 +162,97 @@ def _warnings(method, summaries, labels, usable) -> list[str]:
     sds = {labels[i]: float(summaries[i].sd) for i in usable}
     lo, hi = min(sds, key=sds.get), max(sds, key=sds.get)
     if sds[lo] > 0 and sds[hi] / sds[lo] >= SD_RATIO:
-        other = "'games-howell'" if method == "tukey-kramer" else "a separate-test method ('holm')"
+        other = (
+            "Games-Howell (method='games-howell')"
+            if method == "tukey-kramer"
+            else "separate Welch tests (method='holm')"
+        )
+        name = "Tukey-Kramer" if method == "tukey-kramer" else "Dunnett"
         return [
-            f"The SDs differ {sds[hi] / sds[lo]:.1f}-fold ({hi} vs {lo}); {method} assumes "
-            f"equal variances. {other} does not."
+            f"The SDs differ {sds[hi] / sds[lo]:.1f}-fold ({hi} vs {lo}); {name} assumes "
+            f"equal variances, {other} does not."
         ]
     return []
+
+
+@fill_params()
+def pairwise_from_summary(
+    n,
+    mean,
+    sd,
+    labels: Sequence[str] | None = None,
+    *,
+    against=None,
+    method: str | None = None,
+    level: float = 0.95,
+    side: str = "two-sided",
+    variable: str = "value",
+    by: str = "group",
+    units: str | None = None,
+) -> PairwiseResult:
+    """Compare k groups from published counts, means and SDs, as ``df.tinfer.pairwise`` does.
+
+    Parameters
+    ----------
+    n, mean, sd : sequences of numbers
+        One entry per group (SD with the n - 1 denominator).
+    labels : sequence of str, optional
+        Group names (default "group 1", "group 2", ...), in the order the pairs use: each
+        pair is a later group minus an earlier one.
+    {pairwise_options}
+    variable : str, default "value"
+        What was measured.
+    by : str, default "group"
+        What the groups are (a word for the question and the tables).
+    {units}
+
+    Returns
+    -------
+    PairwiseResult
+
+    Examples
+    --------
+    >>> import tinfer
+    >>> r = tinfer.pairwise_from_summary(n=[10, 12, 11], mean=[20.1, 23.4, 20.9],
+    ...                                  sd=[2.0, 2.4, 2.2], labels=["mesh", "foam", "gel"],
+    ...                                  method="tukey-kramer")
+    >>> [round(float(v), 4) for v in r.p_adjusted]
+    [0.0044, 0.6907, 0.0296]
+    """
+    func = "pairwise_from_summary"
+    lists = []
+    for name, v in (("n", n), ("mean", mean), ("sd", sd)):
+        if isinstance(v, str) or not hasattr(v, "__len__") or len(v) < 2:
+            raise fail(name, func, "a sequence with one number per group (two or more)", v)
+        lists.append(list(v))
+    if len({len(v) for v in lists}) != 1:
+        raise ParameterError(
+            f"The 'n', 'mean' and 'sd' parameters of {func} must have one entry per group. "
+            f"Got {len(lists[0])}, {len(lists[1])} and {len(lists[2])} entries."
+        )
+    k = len(lists[0])
+    names = [f"group {i + 1}" for i in range(k)] if labels is None else [str(v) for v in labels]
+    if len(names) != k or len(set(names)) != k:
+        raise fail("labels", func, f"{k} distinct names, one per group", labels)
+    summaries = []
+    for ni, mi, si in zip(*lists, strict=True):
+        for name, v in (("n", ni), ("mean", mi), ("sd", si)):
+            if not is_real(v):
+                raise fail(name, func, SUMMARY_RULES[name].format(min_n=2), v)
+        problem = summary_problem(ni, mi, si, min_n=2)
+        if problem is not None:
+            name, _, _, rule = problem
+            raise fail(name, func, rule, {"n": ni, "mean": mi, "sd": si}[name])
+        summaries.append(Summary.from_moments(float(ni), float(mi), float(si)))
+    return run_pairwise(
+        summaries,
+        names,
+        method=method,
+        against=against,
+        level=level,
+        side=side,
+        variable=variable,
+        by=by,
+        units=units,
+        func=func,
+    )

@@ -2,7 +2,8 @@
 
 Inputs are per-level summaries shaped ``(families, levels)`` (one family per segment of a
 batch, or a single family); outputs are arrays shaped ``(families, pairs)``. A pair
-``(i, j)`` estimates mean ``i`` minus mean ``j``. Levels with fewer than two values take no
+``(i, j)`` estimates mean ``i`` minus mean ``j``; :func:`pair_indices` lists a later level
+minus an earlier one. Levels with fewer than two values take no
 part (their pairs are NaN and they do not count in k).
 
 Methods, by their published names:
@@ -61,17 +62,19 @@ class Family:
 
 
 def pair_indices(k: int, against: int | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """``(first, second)`` level indices: all pairs ``i < j``, or ``(i, against)``.
+    """``(first, second)`` level indices: all pairs ``(j, i)`` with ``i < j`` (a later level
+    minus an earlier one, so that differences along ordered levels read upward), or
+    ``(i, against)`` (each level minus the control).
 
     Examples
     --------
-    >>> [list(v) for v in pair_indices(3)]
-    [[0, 0, 1], [1, 2, 2]]
-    >>> [list(v) for v in pair_indices(3, against=0)]
+    >>> [v.tolist() for v in pair_indices(3)]
+    [[1, 2, 2], [0, 0, 1]]
+    >>> [v.tolist() for v in pair_indices(3, against=0)]
     [[1, 2], [0, 0]]
     """
     if against is None:
-        first, second = np.triu_indices(k, 1)
+        second, first = np.triu_indices(k, 1)
     else:
         first = np.array([i for i in range(k) if i != against], dtype=np.intp)
         second = np.full(first.size, against, dtype=np.intp)
@@ -102,7 +105,7 @@ def family(
     >>> n, mean, ssd = [[5.0, 5.0, 5.0]], [[10.0, 12.0, 15.0]], [[8.0, 10.0, 12.0]]
     >>> f = family("tukey-kramer", n, mean, ssd, *pair_indices(3))
     >>> np.round(f.estimate[0], 3).tolist(), np.round(f.p_family[0], 4).tolist()
-    ([-2.0, -5.0, -3.0], [0.0495, 0.0001, 0.0052])
+    ([2.0, 5.0, 3.0], [0.1546, 0.0008, 0.0277])
     """
     n, mean, ssd = (np.atleast_2d(np.asarray(v, float)) for v in (n, mean, ssd))
     lo = np.zeros_like(mean) if mean_lo is None else np.atleast_2d(np.asarray(mean_lo, float))

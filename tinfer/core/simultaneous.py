@@ -16,11 +16,10 @@ independent standard normals, so ``G`` is a one-dimensional integral over ``W`` 
 of normal tails (Dunnett 1955); the range tail is
 ``G(r) = k int phi(z) [Phi(z)^(k-1) - (Phi(z) - Phi(z - r))^(k-1)] dz`` (Hartley 1942, from
 memory). Each ``G`` is formed as an upper tail (``-expm1`` of a sum of ``log1p``), never as
-``1 - cdf``, so small p-values keep their digits. The outer integral runs over ``x = log S``
-with Gauss-Legendre panels placed where the integrand lives: a coarse look with the
-Bonferroni bound of ``G`` first, then 64 nodes on the interval that holds the mass. The
-range tail ``G`` depends on ``r`` and ``k`` only; it is tabulated once per ``k`` on a grid
-of step 1/256 with its derivative and read by cubic Hermite interpolation of ``log G``.
+``1 - cdf``, so small p-values keep their digits; :mod:`tinfer.core.studentize` averages it
+over ``S``. The range tail ``G`` depends on ``r`` and ``k`` only; it is tabulated once per
+``k`` on a grid of step 1/256 with its derivative and read by cubic Hermite interpolation
+of ``log G``.
 
 Critical values solve ``P(c) = 1 - level`` by the Illinois method on ``log c``, bracketed by
 the single-comparison and the Bonferroni critical values. ``df = inf`` gives the normal
@@ -34,171 +33,11 @@ import functools
 import numpy as np
 from scipy import special
 
-from . import parallel
+from .studentize import GL16, HALF_LOG_2PI, panels, solve, t_upper, tail
 
-_GL16 = np.polynomial.legendre.leggauss(16)
 _GL12 = np.polynomial.legendre.leggauss(12)
-_LOG_FLOOR = -745.0  # exp of anything below is zero in float64
-_CUT = 46.0  # the outer integrand is dropped where it is e^-46 (1e-20) below its peak
 _R_MAX = 56.0  # the range tail is below 1e-300 beyond this r, for every k
 _STEP = 1.0 / 256.0
-CHUNK = 1024  # values per chunk of the outer integral (threads share the chunks)
-BUCKETS = (2, 4, 8, 16, 32)  # panel counts of the outer integral (64 above them)
-_HALF_LOG_2PI = 0.5 * np.log(2.0 * np.pi)
-
-
-# ---------------------------------------------------------------- the distribution of log S
-def _stirling_remainder(a: np.ndarray) -> np.ndarray:
-    """``lgamma(a) - ((a - 1/2) log a - a + log(2 pi) / 2)``, accurate for every a > 0."""
-    big = a >= 20.0
-    ab = np.where(big, a, 20.0)
-    z = 1.0 / (ab * ab)
-    series = (1.0 / 12.0 - z * (1.0 / 360.0 - z * (1.0 / 1260.0 - z / 1680.0))) / ab
-    small = np.where(big, 1.0, a)
-    direct = special.gammaln(small) - ((small - 0.5) * np.log(small) - small + _HALF_LOG_2PI)
-    return np.where(big, series, direct)
-
-
-_INV_FACT = [1.0 / np.prod(np.arange(1.0, n + 1)) for n in range(12)]
-
-
-def _expm1_minus(u: np.ndarray) -> np.ndarray:
-    """``exp(u) - 1 - u`` without cancellation near 0 (the Taylor series below 0.1)."""
-    with np.errstate(over="ignore"):
-        out = np.expm1(u) - u
-    near = np.abs(u) < 0.1
-    if near.any():
-        v = u[near]
-        acc = np.full(v.shape, _INV_FACT[11])
-        for n in range(10, 1, -1):
-            acc = acc * v + _INV_FACT[n]
-        out[near] = acc * v * v
-    return out
-
-
-def _log_s_const(df) -> np.ndarray:
-    """``log 2 + (df/2) log(df/2) - lgamma(df/2) - df/2`` by Stirling's remainder."""
-    a = np.asarray(df, float) / 2.0
-    return np.log(2.0) + 0.5 * np.log(a) - _HALF_LOG_2PI - _stirling_remainder(a)
-
-
-def log_s_density(x, df) -> np.ndarray:
-    """Log density of ``log S`` at ``x``, for ``S = sqrt(chi2(df) / df)``.
-
-    ``log 2 + (df/2) log(df/2) - lgamma(df/2) + df x - (df/2) e^(2x)``, rearranged with
-    Stirling's remainder and ``exp(u) - 1 - u`` so that nothing cancels at large df.
-
-    Examples
-    --------
-    >>> from scipy import integrate
-    >>> round(integrate.quad(lambda x: np.exp(log_s_density(x, 7.0)), -30, 5)[0], 12)
-    1.0
-    """
-    x, df = np.asarray(x, float), np.asarray(df, float)
-    return _log_s_const(df) - (df / 2.0) * _expm1_minus(2.0 * x)
-
-
-# ---------------------------------------------------------------- the outer integral
-def _outer(c, df, log_g, log_bound, beta):
-    """``P = E_S[G(c S)]`` for arrays ``c`` and ``df`` of one shape (finite df).
-
-    ``log_g(r, idx)`` returns ``log G`` at ``r`` (shape (len(idx), nodes)) for the values
-    ``idx``; ``log_bound(r, idx)`` an upper bound of it that is cheap to evaluate; ``beta``
-    the Gaussian rate of G's tail, ``log G(r) ~ -beta r^2``, which places the peak.
-    """
-    c, df = np.broadcast_arrays(np.asarray(c, float), np.asarray(df, float))
-    shape = c.shape
-    c, df = c.ravel(), df.ravel()
-    idx = np.arange(c.size)
-    sig = 1.0 / np.sqrt(2.0 * df)
-    with np.errstate(divide="ignore"):
-        peak = -0.5 * np.log1p(2.0 * beta * c * c / df)
-    lo = -(-_LOG_FLOOR + 10.0) / df - 1.0
-    hi = np.minimum(np.sqrt(800.0 / df), 0.5 * np.log(1600.0 / df + 9.0))
-    steps = np.linspace(-12.0, 12.0, 25)
-    coarse = np.concatenate(
-        [
-            lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, 48),
-            steps * sig[:, None],
-            peak[:, None] + steps * sig[:, None],
-        ],
-        axis=1,
-    )
-    coarse.sort(axis=1)
-    with np.errstate(over="ignore", under="ignore"):
-        r = c[:, None] * np.exp(coarse)
-    const, half = _log_s_const(df)[:, None], (df / 2.0)[:, None]
-    val = log_bound(r, idx) + (const - half * _expm1_minus(2.0 * coarse))
-    top = val.max(axis=1, keepdims=True)
-    inside = val >= top - _CUT
-    first = np.argmax(inside, axis=1)
-    last = inside.shape[1] - 1 - np.argmax(inside[:, ::-1], axis=1)
-    rows = np.arange(c.size)
-    a = coarse[rows, np.maximum(first - 1, 0)]
-    b = coarse[rows, np.minimum(last + 1, inside.shape[1] - 1)]
-    mid = np.minimum(coarse[rows, np.argmax(val, axis=1)] + np.minimum(2.0 * sig, 0.1), b)
-    # Left of the peak (and a little past it) the integrand falls like e^(df x) far out and
-    # like a Gaussian of width sig near the peak; it is integrated in x, in panels of at
-    # most 6 sig and, where the exponential fall matters (small df), at most 10 / df.
-    # Right of it the integrand falls like exp(-rate s^2), a Gaussian of width tau in s,
-    # and is integrated in s = e^x, in panels of at most 6 tau (or a fall of e^10 where
-    # that is wider), and at most a doubling of s. 16 nodes integrate each to rounding.
-    rate = df / 2.0 + beta * c * c
-    tau = 1.0 / np.sqrt(2.0 * rate)
-    s0, s1 = np.exp(mid), np.exp(b)
-    left = np.ceil((mid - a) / np.minimum(6.0 * sig, np.maximum(10.0 / df, 2.0 * sig)))
-    width = np.minimum(6.0 * tau, np.maximum(5.0 / (rate * s1), 2.0 * tau))
-    right = np.ceil((s1 - s0) / np.minimum(np.minimum(6.0 * sig, 1.0) * s0, width))
-    total = np.zeros(c.size)
-    for lo_edge, hi_edge, need, in_s in ((a, mid, left, False), (s0, s1, right, True)):
-        count = np.select([need <= 2, need <= 4, need <= 8, need <= 16, need <= 32], BUCKETS, 64)
-        for panels in np.unique(count):
-            sel = np.flatnonzero(count == panels)
-            nodes, weights = _panels(lo_edge[sel], hi_edge[sel], int(panels), _GL16)
-            if in_s:
-                weights = weights / nodes
-                nodes = np.log(nodes)
-            with np.errstate(over="ignore", under="ignore"):
-                r = c[sel, None] * np.exp(nodes)
-            logs = log_g(r, idx[sel]) + (const[sel] - half[sel] * _expm1_minus(2.0 * nodes))
-            with np.errstate(under="ignore"):
-                total[sel] += np.sum(weights * np.exp(logs), axis=1)
-    return total.reshape(shape)
-
-
-def _panels(a, b, count, rule):
-    """Composite Gauss-Legendre nodes and weights on ``[a_i, b_i]``, ``count`` equal panels."""
-    x, w = rule
-    width = (b - a) / count
-    starts = a[:, None] + width[:, None] * np.arange(count)
-    nodes = starts[:, :, None] + (width[:, None, None] / 2.0) * (x + 1.0)
-    weights = np.broadcast_to((width[:, None, None] / 2.0) * w, nodes.shape)
-    return nodes.reshape(a.size, -1), weights.reshape(a.size, -1)
-
-
-def _tail(c, df, log_g, log_bound, beta):
-    """``E_S[G(cS)]`` for ``c >= 0``; ``df = inf`` and ``c = 0`` need only ``G(c)``."""
-    c, df = np.broadcast_arrays(np.asarray(c, float), np.asarray(df, float))
-    out = np.ones(c.shape)
-    normal = (np.isinf(df) | (c == 0)) & np.isfinite(c)
-    if normal.any():
-        idx = np.flatnonzero(normal)
-        with np.errstate(under="ignore"):
-            out[normal] = np.exp(log_g(c[normal][:, None], idx))[:, 0]
-    finite = np.isfinite(df) & (c > 0) & np.isfinite(c)
-    if finite.any():
-        idx = np.flatnonzero(finite)
-
-        def part(s: slice) -> np.ndarray:
-            here = idx[s]
-            g = lambda r, rows: log_g(r, here[rows])  # noqa: E731
-            bound = lambda r, rows: log_bound(r, here[rows])  # noqa: E731
-            return _outer(c.flat[here], df.flat[here], g, bound, beta)
-
-        out[finite] = parallel.chunked(part, idx.size, CHUNK, 2 * CHUNK)
-    out[np.isinf(c) & (c > 0)] = 0.0
-    out[np.isnan(c) | np.isnan(df)] = np.nan
-    return np.minimum(out, 1.0)
 
 
 # ---------------------------------------------------------------- the studentized range
@@ -224,17 +63,17 @@ def _range_direct(r: np.ndarray, k: int) -> tuple[np.ndarray, np.ndarray]:
     Both integrals are summed on the log scale, so that neither underflows at large r.
     """
     centre = r / 2.0
-    z, w = _panels(np.minimum(-9.0, centre - 10.0), np.maximum(9.0, centre + 10.0), 8, _GL16)
+    z, w = panels(np.minimum(-9.0, centre - 10.0), np.maximum(9.0, centre + 10.0), 8, GL16)
     rr = r[:, None]
     log_w = np.log(w)
-    log_pdf = -0.5 * z * z - _HALF_LOG_2PI
+    log_pdf = -0.5 * z * z - HALF_LOG_2PI
     with np.errstate(divide="ignore", under="ignore", invalid="ignore"):
         log_low = special.log_ndtr(z)
         ratio = np.exp(special.log_ndtr(z - rr) - log_low)  # Phi(z - r) / Phi(z)
         # G: k phi(z) Phi(z)^(k-1) (1 - (1 - ratio)^(k-1))
         log_tail = log_pdf + (k - 1) * log_low + np.log(-np.expm1((k - 1) * np.log1p(-ratio)))
         # its derivative: k (k-1) phi(z) phi(z - r) (Phi(z) - Phi(z - r))^(k-2)
-        log_dens = log_pdf - 0.5 * (z - rr) ** 2 - _HALF_LOG_2PI
+        log_dens = log_pdf - 0.5 * (z - rr) ** 2 - HALF_LOG_2PI
         if k > 2:
             log_dens = log_dens + (k - 2) * (log_low + np.log1p(-ratio))
         log_g = np.log(k) + special.logsumexp(log_w + log_tail, axis=1)
@@ -268,7 +107,7 @@ def range_sf(q, k: int, df) -> np.ndarray:
     Examples
     --------
     >>> round(float(range_sf(3.0, 2, 10.0)), 12)  # k = 2: Q = sqrt(2) |T|
-    0.072652618458
+    0.059890324426
     """
     k = _check_k(k, 2)
     if k == 2:  # exact through Student's t
@@ -276,7 +115,7 @@ def range_sf(q, k: int, df) -> np.ndarray:
         t = np.where(np.isinf(df), 0.0, special.stdtr(np.where(np.isinf(df), 1.0, df), -q / 2**0.5))
         return np.where(np.isinf(df), 2.0 * special.ndtr(-q / 2**0.5), 2.0 * t)
     _range_table(k)  # built once, before any threads read it
-    return _tail(
+    return tail(
         q,
         df,
         lambda r, idx: _range_log_g(r, k),
@@ -298,11 +137,11 @@ def range_critical(level, k: int, df) -> np.ndarray:
     pairs = k * (k - 1) / 2.0
     df = np.asarray(df, float)
     if k == 2:  # Q = sqrt(2) |T|
-        return 2**0.5 * _t_upper(alpha / 2.0, df)
-    low = 2**0.5 * _t_upper(alpha / 2.0, df)
-    high = 2**0.5 * _t_upper(alpha / (2.0 * pairs), df)
+        return 2**0.5 * t_upper(alpha / 2.0, df)
+    low = 2**0.5 * t_upper(alpha / 2.0, df)
+    high = 2**0.5 * t_upper(alpha / (2.0 * pairs), df)
     df_flat = np.broadcast_to(df, low.shape).ravel()
-    return _solve(lambda c, i: range_sf(c, k, df_flat[i]), alpha, low, high)
+    return solve(lambda c, i: range_sf(c, k, df_flat[i]), alpha, low, high)
 
 
 # ---------------------------------------------------------------- Dunnett's many-to-one
@@ -328,13 +167,13 @@ def _dunnett_parts(lam: np.ndarray, kind: str):
         else:  # mass near w = +-lam r, and near 0
             a = np.zeros_like(r) if kind == "two-sided" else np.full_like(r, -9.0)
             b = np.minimum(38.0, np.max(lam_i, axis=1)[:, None] * r + 9.0)
-        z, w = _panels(a.ravel(), b.ravel(), 6, _GL12)
+        z, w = panels(a.ravel(), b.ravel(), 6, _GL12)
         z = z.reshape(*r.shape, -1)[..., None]  # (rows, nodes, w nodes, 1)
         w = w.reshape(*r.shape, -1) * (2.0 if kind == "two-sided" else 1.0)
         rr = r[..., None, None]
         li, ri, ui = (v[:, None, None, :] for v in (lam_i, rho_i, used_i))
         with np.errstate(under="ignore", divide="ignore"):
-            log_dens = -0.5 * z[..., 0] ** 2 - _HALF_LOG_2PI
+            log_dens = -0.5 * z[..., 0] ** 2 - HALF_LOG_2PI
             if kind == "all-below":
                 inner = np.sum(np.where(ui, special.log_ndtr((-rr - li * z) / ri), 0.0), -1)
                 return special.logsumexp(np.log(w) + log_dens + inner, axis=-1)
@@ -379,7 +218,7 @@ def dunnett_sf(c, lam, df, side: str = "two-sided") -> np.ndarray:
         log_g, log_bound = _dunnett_parts(lam, kind)
         g = lambda r, idx: log_g(r, fam[sel][idx])  # noqa: E731
         bound = lambda r, idx: log_bound(r, fam[sel][idx])  # noqa: E731
-        return _tail(cc, df[sel], g, bound, 0.5)
+        return tail(cc, df[sel], g, bound, 0.5)
 
     if side == "two-sided":
         every = np.arange(cf.size)
@@ -409,56 +248,9 @@ def dunnett_critical(level, lam, df, side: str = "two-sided") -> np.ndarray:
     df = np.asarray(df, float).reshape(-1)
     m = np.isfinite(lam).sum(axis=1)
     sides = 2.0 if side == "two-sided" else 1.0
-    low = _t_upper(alpha / sides, df)
-    high = _t_upper(alpha / (sides * m), df)
-    return _solve(
-        lambda cc, i: dunnett_sf(cc[:, None], lam[i], df[i], side)[:, 0], alpha, low, high
-    )
-
-
-# ---------------------------------------------------------------- shared helpers
-def _t_upper(p, df) -> np.ndarray:
-    """The upper ``p`` point of Student's t (normal for infinite df)."""
-    p, df = np.broadcast_arrays(np.asarray(p, float), np.asarray(df, float))
-    fin = np.where(np.isinf(df), 1.0, df)
-    return np.where(np.isinf(df), -special.ndtri(p), -special.stdtrit(fin, p))
-
-
-def _solve(tail, alpha, low, high, iterations: int = 60) -> np.ndarray:
-    """``c`` with ``tail(c) = alpha``, tail decreasing, bracketed by [low, high].
-
-    The Illinois method on ``log c`` against ``log tail - log alpha`` (regula falsi where the
-    end kept twice in a row has its value halved, which keeps convergence superlinear),
-    each round on the unfinished values only. ``tail`` takes the values and their indices.
-    A value is finished when ``log tail`` is within 5e-14 of ``log alpha``.
-    """
-    low, high = np.broadcast_arrays(np.asarray(low, float), np.asarray(high, float))
-    shape = low.shape
-    low, high = low.ravel(), high.ravel()
-    log_alpha = np.broadcast_to(np.log(np.asarray(alpha, float)), shape).ravel()
-
-    def f(x, idx):
-        with np.errstate(divide="ignore"):
-            return np.log(tail(np.exp(x), idx)) - log_alpha[idx]
-
-    every = np.arange(low.size)
-    a, b = np.log(low), np.log(high * (1.0 + 1e-12))
-    fa, fb = f(a, every), f(b, every)
-    for _ in range(iterations):
-        todo = np.flatnonzero((np.abs(fb) > 5e-14) & (np.abs(b - a) > 4e-16 * np.abs(b)))
-        if todo.size == 0:
-            break
-        at, bt, fat, fbt = a[todo], b[todo], fa[todo], fb[todo]
-        with np.errstate(invalid="ignore", divide="ignore"):
-            x = (at * fbt - bt * fat) / (fbt - fat)
-        inside = np.isfinite(x) & (x > np.minimum(at, bt)) & (x < np.maximum(at, bt))
-        x = np.where(inside, x, (at + bt) / 2.0)
-        fx = f(x, todo)
-        same = np.sign(fx) == np.sign(fbt)
-        fa[todo] = np.where(same, fat / 2.0, fbt)
-        a[todo] = np.where(same, at, bt)
-        b[todo], fb[todo] = x, fx
-    return np.exp(b).reshape(shape)
+    low = t_upper(alpha / sides, df)
+    high = t_upper(alpha / (sides * m), df)
+    return solve(lambda cc, i: dunnett_sf(cc[:, None], lam[i], df[i], side)[:, 0], alpha, low, high)
 
 
 def _check_k(k, least: int) -> int:

@@ -325,8 +325,8 @@ class TinferFrameAccessor:
 
         Every pair of levels, or every level against the control ``against``, with
         intervals and p-values that hold for the whole family. Levels keep a categorical
-        column's own order and are sorted otherwise; each pair estimates the first level
-        minus the second (a level minus the control with ``against``). Equivalence margins
+        column's own order and are sorted otherwise; each pair estimates a later level
+        minus an earlier one (a level minus the control with ``against``). Equivalence margins
         are not offered here: test a pair with ``two_sample(..., groups=(a, b), margin=m)``.
 
         Parameters
@@ -350,7 +350,7 @@ class TinferFrameAccessor:
         ...                    "oven": ["A"] * 4 + ["B"] * 4 + ["C"] * 4})
         >>> r = df.tinfer.pairwise("crisp_s", by="oven")
         >>> r.pair_labels(), r.n_differ
-        (['A minus B', 'A minus C', 'B minus C'], 2)
+        (['B minus A', 'C minus A', 'C minus B'], 2)
         """
         return pairwise_frame(
             self._obj, column, by, against=against, method=method, level=level, side=side,

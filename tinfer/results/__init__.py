@@ -12,6 +12,7 @@ from .batch import BatchResult
 from .bootstrap import BootstrapCheck
 from .diagnostics import Diagnostics
 from .equivalence import Equivalence, OneSidedTest
+from .pairwise import PairwiseResult
 from .parts import Effect, GroupStats
 from .plan import PlanResult
 from .tdist import TDistribution, TDistView, tdist
@@ -25,6 +26,7 @@ __all__ = [
     "Equivalence",
     "GroupStats",
     "OneSidedTest",
+    "PairwiseResult",
     "PlanResult",
     "TDistView",
     "TDistribution",
