@@ -34,6 +34,8 @@ KINDS = (
     "batch",
     "checks",
     "bootstrap",
+    "pairwise",
+    "against a control",
 )
 
 
@@ -52,6 +54,13 @@ def _objects() -> dict[str, object]:
                 (branch, recipe, round(a, 2), round(c, 2)) for a, c in zip(rise, crust, strict=True)
             ]
     bakery = pd.DataFrame(rows, columns=["branch", "recipe", "rise_mm", "crust_mm"])
+    # ten invented glaze recipes: 45 pairs, the most the pairwise chart is made for
+    glaze = pd.DataFrame(
+        {
+            "gloss": np.concatenate([rng.normal(60 + 1.5 * i, 2 + 0.4 * i, 9) for i in range(10)]),
+            "recipe": np.repeat([f"recipe {chr(65 + i)}" for i in range(9)] + ["<x>"], 9),
+        }
+    )
     return {
         "result": r,
         "equivalence": tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8, variable=SCRIPT),
@@ -61,6 +70,8 @@ def _objects() -> dict[str, object]:
         "batch": bakery.tinfer.compare(["rise_mm", "crust_mm"], by="recipe", within="branch"),
         "checks": r.check(),
         "bootstrap": r.bootstrap(1999, seed=7),
+        "pairwise": glaze.tinfer.pairwise("gloss", by="recipe"),
+        "against a control": glaze.tinfer.pairwise("gloss", by="recipe", against="recipe A"),
     }
 
 

@@ -94,9 +94,10 @@ def run_pairwise(
                 "Level(s) with fewer than two values take no part: " + ", ".join(dropped) + "."
             )
     missing = list(n_missing) if n_missing is not None else [0] * len(labels)
-    groups = tuple(
-        group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, missing, strict=True)
-    )
+    with np.errstate(invalid="ignore", divide="ignore"):  # a level with one value has no SD
+        groups = tuple(
+            group_stats(lab, s, m) for lab, s, m in zip(labels, summaries, missing, strict=True)
+        )
     row = lambda v: frozen(np.array(v[0], dtype=float))  # noqa: E731
     return PairwiseResult(
         method=method,

@@ -81,7 +81,7 @@ def _range_direct(r: np.ndarray, k: int) -> tuple[np.ndarray, np.ndarray]:
     return log_g, -np.exp(log_dg - log_g)
 
 
-def _range_log_g(r: np.ndarray, k: int) -> np.ndarray:
+def range_log_g(r: np.ndarray, k: int) -> np.ndarray:
     """``log G_k(r)`` by cubic Hermite interpolation in the table (``-inf`` beyond it)."""
     table = _range_table(k)
     pos = np.asarray(r, float) / _STEP
@@ -95,7 +95,7 @@ def _range_log_g(r: np.ndarray, k: int) -> np.ndarray:
     return out
 
 
-def _range_bound(r: np.ndarray, k: int) -> np.ndarray:
+def range_bound(r: np.ndarray, k: int) -> np.ndarray:
     """Bonferroni: ``log min(1, C(k, 2) * 2 Phi(-r / sqrt 2))``."""
     pairs = k * (k - 1) / 2.0
     return np.minimum(0.0, np.log(pairs) + np.log(2.0) + special.log_ndtr(-r / np.sqrt(2.0)))
@@ -118,8 +118,8 @@ def range_sf(q, k: int, df) -> np.ndarray:
     return tail(
         q,
         df,
-        lambda r, idx: _range_log_g(r, k),
-        lambda r, idx: _range_bound(r, k),
+        lambda r, idx: range_log_g(r, k),
+        lambda r, idx: range_bound(r, k),
         0.25,
     )
 
@@ -151,7 +151,8 @@ def _dunnett_parts(lam: np.ndarray, kind: str):
     ``kind`` "two-sided": ``G(r) = P(max |Z_i| > r)``; "upper": ``P(max Z_i > r)``;
     "all-below": ``P(all Z_i <= -r)``, used for one-sided tails at negative c. With
     ``Z_i = rho_i U_i + lam_i W``, each is an integral over ``w`` of products of normal
-    tails, by Gauss-Legendre (6 panels of 12) over the stretch of w that holds the mass.
+    tails, by Gauss-Legendre (panels of 12 nodes about 1.5 wide) over the stretch of w that
+    holds the mass.
     """
     used = np.isfinite(lam)
     lam0 = np.where(used, lam, 0.0)
@@ -167,7 +168,7 @@ def _dunnett_parts(lam: np.ndarray, kind: str):
         else:  # mass near w = +-lam r, and near 0
             a = np.zeros_like(r) if kind == "two-sided" else np.full_like(r, -9.0)
             b = np.minimum(38.0, np.max(lam_i, axis=1)[:, None] * r + 9.0)
-        z, w = panels(a.ravel(), b.ravel(), 6, _GL12)
+        z, w = panels(a.ravel(), b.ravel(), 6 if kind == "two-sided" else 12, _GL12)
         z = z.reshape(*r.shape, -1)[..., None]  # (rows, nodes, w nodes, 1)
         w = w.reshape(*r.shape, -1) * (2.0 if kind == "two-sided" else 1.0)
         rr = r[..., None, None]
