@@ -7,13 +7,13 @@ The names below are the package's public face, used by :mod:`tinfer.frames` and
 
 from __future__ import annotations
 
-from .batch import check_options, from_cube, run_batch
+from .batch import check_options, from_cube, run_batch, run_pairwise_batch
 from .bootstrap import bootstrap
 from .diagnostics import diagnose
 from .equivalence import check_margin, equivalence_for
 from .from_summary import from_summary
 from .multiplicity import adjust
-from .pairwise import pairwise_from_summary, run_pairwise
+from .pairwise import check_method, pairwise_from_summary, run_pairwise
 from .plan import detectable_effect_of, follow_up, plan, replan
 from .ttest import build, group_stats, rebuild
 
@@ -22,6 +22,7 @@ __all__ = [
     "bootstrap",
     "build",
     "check_margin",
+    "check_method",
     "check_options",
     "detectable_effect_of",
     "diagnose",
@@ -36,4 +37,5 @@ __all__ = [
     "replan",
     "run_batch",
     "run_pairwise",
+    "run_pairwise_batch",
 ]

@@ -39,6 +39,17 @@ RANGE_METHODS = ("games-howell", "tukey-kramer")
 SEPARATE = ("holm", "hochberg", "benjamini-hochberg", "benjamini-yekutieli", "none")
 METHODS = (*RANGE_METHODS, "dunnett", *SEPARATE)
 POOLED = ("tukey-kramer", "dunnett")
+#: Short published names, for headlines and method lines.
+SHORT = {
+    "games-howell": "Games-Howell",
+    "tukey-kramer": "Tukey-Kramer",
+    "dunnett": "Dunnett",
+    "holm": "Welch tests, Holm",
+    "hochberg": "Welch tests, Hochberg",
+    "benjamini-hochberg": "Welch tests, Benjamini-Hochberg",
+    "benjamini-yekutieli": "Welch tests, Benjamini-Yekutieli",
+    "none": "Welch tests, unadjusted",
+}
 
 
 @dataclass(frozen=True, eq=False)

@@ -31,6 +31,7 @@ from __future__ import annotations
 import functools
 
 import numpy as np
+from numpy.polynomial import chebyshev
 from scipy import special
 
 from .studentize import GL16, HALF_LOG_2PI, panels, solve, t_upper, tail
@@ -38,15 +39,20 @@ from .studentize import GL16, HALF_LOG_2PI, panels, solve, t_upper, tail
 _GL12 = np.polynomial.legendre.leggauss(12)
 _R_MAX = 56.0  # the range tail is below 1e-300 beyond this r, for every k
 _STEP = 1.0 / 256.0
+#: From this many distinct df values on, critical values come from a table (see
+#: :func:`range_critical`); its degree.
+TABLE_MIN = 64
+CHEB_DEGREE = 40
 
 
 # ---------------------------------------------------------------- the studentized range
 @functools.lru_cache(maxsize=16)
-def _range_table(k: int) -> np.ndarray:
+def _range_table(k: int) -> tuple[np.ndarray, ...]:
     """Cubic pieces of ``log G_k`` between the grid points ``r = 0, 1/256, ..., 56``.
 
-    Row ``i`` holds ``(c0, c1, c2, c3)`` of the cubic Hermite interpolant on cell ``i`` in
-    ``u = r / step - i``, from ``log G`` and its derivative at the two ends.
+    Arrays ``(c0, c1, c2, c3)``: entry ``i`` of each is a coefficient of the cubic Hermite
+    interpolant on cell ``i`` in ``u = r / step - i``, from ``log G`` and its derivative at
+    the two ends.
     """
     r = np.arange(0.0, _R_MAX + _STEP / 2, _STEP)
     logs, slopes = np.empty_like(r), np.empty_like(r)
@@ -54,7 +60,8 @@ def _range_table(k: int) -> np.ndarray:
         logs[part], slopes[part] = _range_direct(r[part], k)
     f0, f1 = logs[:-1], logs[1:]
     d0, d1 = slopes[:-1] * _STEP, slopes[1:] * _STEP
-    return np.stack([f0, d0, 3 * (f1 - f0) - 2 * d0 - d1, 2 * (f0 - f1) + d0 + d1], axis=1)
+    pieces = (f0, d0, 3 * (f1 - f0) - 2 * d0 - d1, 2 * (f0 - f1) + d0 + d1)
+    return tuple(np.ascontiguousarray(v) for v in pieces)
 
 
 def _range_direct(r: np.ndarray, k: int) -> tuple[np.ndarray, np.ndarray]:
@@ -83,14 +90,16 @@ def _range_direct(r: np.ndarray, k: int) -> tuple[np.ndarray, np.ndarray]:
 
 def range_log_g(r: np.ndarray, k: int) -> np.ndarray:
     """``log G_k(r)`` by cubic Hermite interpolation in the table (``-inf`` beyond it)."""
-    table = _range_table(k)
-    pos = np.asarray(r, float) / _STEP
-    beyond = ~(pos <= table.shape[0])  # also NaN
-    pos = np.where(beyond, 0.0, pos)
-    i = np.minimum(pos.astype(np.intp), table.shape[0] - 1)
-    u = pos - i
-    c0, c1, c2, c3 = np.moveaxis(table[i], -1, 0)
-    out = c0 + u * (c1 + u * (c2 + u * c3))
+    c0, c1, c2, c3 = _range_table(k)
+    pos = np.asarray(r, float) * (1.0 / _STEP)
+    beyond = ~(pos < c0.size)  # also NaN
+    pos[beyond] = 0.0
+    i = pos.astype(np.intp)
+    pos -= i  # now the position u in the cell
+    out = np.take(c3, i)
+    for coef in (c2, c1, c0):
+        out *= pos
+        out += np.take(coef, i)
     out[beyond] = -np.inf
     return out
 
@@ -127,21 +136,47 @@ def range_sf(q, k: int, df) -> np.ndarray:
 def range_critical(level, k: int, df) -> np.ndarray:
     """The ``level`` quantile of the studentized range: ``range_sf(q, k, df) = 1 - level``.
 
+    Each distinct df is solved once. From :data:`TABLE_MIN` distinct df values on (batches),
+    df of 1 and more are read from a Chebyshev interpolant of ``log q`` in ``1 / df``
+    (degree 40, built once per k and level from 41 solved values), which agrees with the
+    solved values to about 1e-13 (``tests/core/test_simultaneous.py``).
+
     Examples
     --------
     >>> round(float(range_critical(0.95, 3, np.inf)), 3)  # Tukey's q(0.05; 3, inf)
     3.314
     """
     k = _check_k(k, 2)
-    alpha = 1.0 - np.asarray(level, float)
-    pairs = k * (k - 1) / 2.0
+    level = float(level)
     df = np.asarray(df, float)
     if k == 2:  # Q = sqrt(2) |T|
-        return 2**0.5 * t_upper(alpha / 2.0, df)
+        return 2**0.5 * t_upper((1.0 - level) / 2.0, df)
+    uniq, back = np.unique(df, return_inverse=True)
+    out = np.empty(uniq.size)
+    tabled = (uniq >= 1.0) if uniq.size >= TABLE_MIN else np.zeros(uniq.size, dtype=bool)
+    if tabled.any():
+        coef = _range_critical_table(k, level)
+        out[tabled] = np.exp(chebyshev.chebval(2.0 / uniq[tabled] - 1.0, coef))
+    if (~tabled).any():
+        out[~tabled] = _range_critical_direct(level, k, uniq[~tabled])
+    return out[back].reshape(df.shape)
+
+
+def _range_critical_direct(level: float, k: int, df: np.ndarray) -> np.ndarray:
+    """Solve ``range_sf(q) = 1 - level`` for each df, bracketed by one pair and Bonferroni."""
+    alpha = 1.0 - level
+    pairs = k * (k - 1) / 2.0
     low = 2**0.5 * t_upper(alpha / 2.0, df)
     high = 2**0.5 * t_upper(alpha / (2.0 * pairs), df)
-    df_flat = np.broadcast_to(df, low.shape).ravel()
-    return solve(lambda c, i: range_sf(c, k, df_flat[i]), alpha, low, high)
+    return solve(lambda c, i: range_sf(c, k, df[i]), alpha, low, high)
+
+
+@functools.lru_cache(maxsize=64)
+def _range_critical_table(k: int, level: float) -> np.ndarray:
+    """Chebyshev coefficients of ``log q`` in ``t = 2 / df - 1`` over df in [1, inf]."""
+    nodes = np.cos(np.pi * (np.arange(CHEB_DEGREE + 1) + 0.5) / (CHEB_DEGREE + 1))
+    df = 2.0 / (nodes + 1.0)
+    return chebyshev.chebfit(nodes, np.log(_range_critical_direct(level, k, df)), CHEB_DEGREE)
 
 
 # ---------------------------------------------------------------- Dunnett's many-to-one

@@ -27,6 +27,7 @@ _CUT = 46.0  # the integrand is dropped where it is e^-46 (1e-20) below its peak
 CHUNK = 1024  # values per chunk of the integral (threads share the chunks)
 BUCKETS = (2, 4, 8, 16, 32)  # panel counts of the integral (64 above them)
 HALF_LOG_2PI = 0.5 * np.log(2.0 * np.pi)
+LOCAL_DF = 50.0  # from this df on, S is concentrated enough to look only near its peak
 
 
 # ---------------------------------------------------------------- the distribution of log S
@@ -98,10 +99,14 @@ def _outer(c, df, log_g, log_bound, beta):
         peak = -0.5 * np.log1p(2.0 * beta * c * c / df)
     lo = -(-_LOG_FLOOR + 10.0) / df - 1.0
     hi = np.minimum(np.sqrt(800.0 / df), 0.5 * np.log(1600.0 / df + 9.0))
-    steps = np.linspace(-12.0, 12.0, 25)
+    steps = np.linspace(-12.0, 12.0, 13)
+    # near the two places the mass can centre on (0, where S peaks, and the Gaussian-tail
+    # estimate of the product's peak); at small df also across the whole range of log S,
+    # whose exponential left tail can carry the mass far out
+    wide = 24 if (df < LOCAL_DF).any() else 0
     coarse = np.concatenate(
         [
-            lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, 48),
+            lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, wide),
             steps * sig[:, None],
             peak[:, None] + steps * sig[:, None],
         ],
@@ -129,8 +134,13 @@ def _outer(c, df, log_g, log_bound, beta):
     rate = df / 2.0 + beta * c * c
     tau = 1.0 / np.sqrt(2.0 * rate)
     s0, s1 = np.exp(mid), np.exp(b)
-    left = np.ceil((mid - a) / np.minimum(6.0 * sig, np.maximum(10.0 / df, 2.0 * sig)))
-    width = np.minimum(6.0 * tau, np.maximum(5.0 / (rate * s1), 2.0 * tau))
+    left = np.ceil(
+        (mid - a)
+        / np.where(df >= 20.0, 6.0 * sig, np.minimum(6.0 * sig, np.maximum(10.0 / df, 2.0 * sig)))
+    )
+    width = np.where(
+        df >= 20.0, 6.0 * tau, np.minimum(6.0 * tau, np.maximum(5.0 / (rate * s1), 2.0 * tau))
+    )
     right = np.ceil((s1 - s0) / np.minimum(np.minimum(6.0 * sig, 1.0) * s0, width))
     total = np.zeros(c.size)
     for lo_edge, hi_edge, need, in_s in ((a, mid, left, False), (s0, s1, right, True)):

@@ -6,7 +6,7 @@ The names below are the package's public face, used by :mod:`tinfer.scale`.
 
 from __future__ import annotations
 
-from .accessor import TinferFrameAccessor, TinferSeriesAccessor
+from .accessor import TinferFrameAccessor
 from .batch import check_result_names, check_roles, choose_arms, metric_specs
 from .batch_table import compare_summaries
 from .columns import column, metric_values, missing_column, to_float
@@ -19,6 +19,7 @@ from .levels import (
     levels_text,
     py_value,
 )
+from .series import TinferSeriesAccessor
 
 __all__ = [
     "TinferFrameAccessor",

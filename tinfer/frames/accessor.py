@@ -19,7 +19,7 @@ from ..results.pairwise import PairwiseResult
 from ..results.ttest import TResult
 from . import ttest
 from .batch import compare_frame
-from .columns import finite, one_column, to_float
+from .columns import one_column
 from .pairwise import pairwise_frame
 
 Margin = float | tuple[float, float] | None
@@ -251,6 +251,8 @@ class TinferFrameAccessor:
         level: float = 0.95,
         side: str = "two-sided",
         pooled: bool = False,
+        pairwise: str | None = None,
+        against: Hashable | None = None,
     ) -> BatchResult:
         """Many t tests at once: every metric in every segment, with adjusted p-values.
 
@@ -277,11 +279,22 @@ class TinferFrameAccessor:
             first minus second (rows missing either value are dropped). Replaces
             ``columns``.
         {batch_options}
+        pairwise : str, optional
+            Compare every level of ``by`` (not two) within every segment, as one family
+            per segment and metric, by this method: "games-howell", "tukey-kramer",
+            "dunnett" (needs ``against``) or separate Welch tests with "holm", "hochberg",
+            "benjamini-hochberg", "benjamini-yekutieli" or "none" (see ``pairwise()``).
+            ``p_family`` is then each pair's p-value adjusted within its family, the
+            intervals are the family's, and ``adjust`` works on ``p_family`` over all rows.
+        against : label, optional
+            With ``pairwise``: a control level of ``by``; each other level is compared
+            with it (default method "dunnett").
 
         Returns
         -------
         BatchResult
-            ``.to_frame()`` has one row per segment and metric.
+            ``.to_frame()`` has one row per segment and metric (and pair, with
+            ``pairwise``).
 
         Examples
         --------
@@ -307,6 +320,8 @@ class TinferFrameAccessor:
             level=level,
             side=side,
             pooled=pooled,
+            pairwise=pairwise,
+            against=against,
         )
 
     @fill_params()
@@ -358,41 +373,4 @@ class TinferFrameAccessor:
         )  # fmt: skip
 
 
-@pd.api.extensions.register_series_accessor("tinfer")
-class TinferSeriesAccessor:
-    """t inference on one Series: ``s.tinfer.one_sample(null=...)``."""
-
-    def __init__(self, obj: pd.Series) -> None:
-        self._obj = obj
-
-    def one_sample(
-        self,
-        *,
-        null: float = 0.0,
-        side: str = "two-sided",
-        level: float = 0.95,
-        units: str | None = None,
-        margin: Margin = None,
-        margin_units: str = "raw",
-        worse: str | None = None,
-        superior: bool = False,
-        trim: float = 0.0,
-    ) -> TResult:
-        """Test the mean of the Series against ``null``; see ``DataFrame.tinfer.one_sample``.
-
-        Examples
-        --------
-        >>> import pandas as pd, tinfer
-        >>> r = pd.Series([9.8, 10.4, 10.1, 9.7, 10.6], name="ohms").tinfer.one_sample(null=10)
-        >>> round(r.estimate, 2), r.variable
-        (10.12, 'ohms')
-        """
-        name = "value" if self._obj.name is None else str(self._obj.name)
-        what = f"Series {name!r}"
-        sample = finite(to_float(self._obj, what), name, what)
-        opts = dict(null=null, side=side, level=level, units=units, trim=trim)
-        opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
-        return ttest.one_sample(sample, name, func="one_sample", **opts)
-
-
-__all__ = ["TinferFrameAccessor", "TinferSeriesAccessor"]
+__all__ = ["TinferFrameAccessor"]

@@ -16,12 +16,22 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..analyses import check_options, from_cube
+from ..analyses import check_method, check_options, from_cube, run_pairwise_batch
 from ..core.grouped import grouped_moments
-from ..errors import ParameterError
+from ..errors import DataError, ParameterError
 from ..results.batch import RESULT_COLUMNS, BatchResult
 from .columns import column, metric_values, reject_inf
-from .levels import as_list, choose_two, combine_codes, key_codes, label_pair
+from .levels import (
+    as_list,
+    choose_two,
+    combine_codes,
+    group_codes,
+    key_codes,
+    label_pair,
+    level_labels,
+    levels_text,
+    py_value,
+)
 
 #: Up to this many levels of ``by``, every level gets its own column of group codes and the
 #: two compared levels are picked after counting (no remapping pass over the rows).
@@ -47,7 +57,7 @@ def check_roles(keys: Sequence[Hashable], by, specs, func: str) -> None:
 def check_result_names(keys: Sequence[Hashable], func: str) -> None:
     """Refuse segment columns whose names clash with columns of the result table."""
     taken = set(RESULT_COLUMNS) | {"n", "mean", "sd", "n_a", "n_b", "mean_a", "mean_b"}
-    taken |= {"sd_a", "sd_b"}
+    taken |= {"sd_a", "sd_b", "first", "second", "p_family"}
     for k in keys:
         if str(k) in taken:
             raise ParameterError(
@@ -195,6 +205,8 @@ def compare_frame(
     *,
     groups: Sequence | None = None,
     paired=None,
+    pairwise: str | None = None,
+    against=None,
     func: str = "compare",
     **opts,
 ) -> BatchResult:
@@ -207,6 +219,8 @@ def compare_frame(
     check_roles(keys, by, specs, func)
     if by is not None and paired is not None:
         raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
+    if pairwise is not None or against is not None:
+        return _pairwise_batch(df, specs, by, keys, groups, pairwise, against, options, func)
     design = "paired" if paired is not None else ("two-sample" if by is not None else "one-sample")
     notes: list[str] = []
     seg = _segments(df, keys)
@@ -269,3 +283,76 @@ def _compared(arms: _Arms, by_seg: np.ndarray, by, groups, notes: list[str]):
         chosen, cols = arms.chosen, [0, 1]
     labels = label_pair(*(arms.levels[i] for i in chosen))
     return cols, labels
+
+
+#: The most levels of ``by`` a pairwise batch takes (190 pairs per segment).
+MAX_PAIRWISE_LEVELS = 20
+
+
+def _pairwise_batch(df, specs, by, keys, groups, method, against, options, func) -> BatchResult:
+    """``compare(..., pairwise=method)``: every level of ``by`` in every segment."""
+    if by is None:
+        raise ParameterError(
+            f"pairwise= of {func} compares the levels of a column: name it with by=."
+        )
+    if groups is not None:
+        raise ParameterError(
+            f"{func} takes groups= (two levels) or pairwise= (all levels), not both."
+        )
+    if options["pooled"] or options["null"] != 0.0:
+        raise ParameterError(
+            f"pooled= and null= do not apply with pairwise= in {func}: the method decides the "
+            "variance model, and pairs are tested against no difference."
+        )
+    seg = _segments(df, keys)
+    # the single pairwise() path's split: a categorical column keeps its own order
+    by_codes, levels = group_codes(column(df, by))
+    by_codes = by_codes.astype(np.intp, copy=False)
+    by_missing = bool((by_codes < 0).any())
+    width = len(levels)
+    g = np.multiply(seg.codes, width, dtype=np.intp)
+    g += by_codes
+    may_miss = seg.missing or by_missing
+    if may_miss:
+        g[(seg.codes < 0) | (by_codes < 0)] = -1
+    key_ok = g >= 0 if may_miss else None
+    n_groups = seg.size * width
+    counts = np.bincount(g if key_ok is None else g[key_ok], minlength=n_groups)
+    table = counts.reshape(seg.size, width)
+    used = np.flatnonzero(table.sum(axis=0) > 0)  # levels that occur (categories may not)
+    if used.size > MAX_PAIRWISE_LEVELS:
+        raise ParameterError(
+            f"Column {by!r} has {used.size} levels; pairwise= in {func} takes at most "
+            f"{MAX_PAIRWISE_LEVELS}. Compare fewer levels, or use groups=(first, second)."
+        )
+    labels = level_labels(levels[used])
+    control = None
+    if against is not None:
+        hits = [j for j, i in enumerate(used) if py_value(levels[i]) == against]
+        if not hits:
+            raise DataError(
+                f"The control {against!r} does not occur in column {by!r}. Levels found: "
+                f"{levels_text(levels[used])}."
+            )
+        control = hits[0]
+    method = check_method(
+        method, None if control is None else labels[control], options["side"], func
+    )
+    notes = []
+    if key_ok is not None and not key_ok.all():
+        lost = int((~key_ok).sum())
+        notes.append(f"{lost} row(s) with a missing segment key or {by!r} value were not used.")
+    n, mean, lo, ssd, miss = _moments(df, specs, g, key_ok, counts, n_groups)
+    if miss.sum():
+        notes.append(f"{int(miss.sum())} missing value(s) dropped.")
+    keep = np.flatnonzero(table.sum(axis=1) > 0)
+
+    def cube(arr):
+        return arr.reshape(len(specs), seg.size, width)[:, keep][:, :, used]
+
+    return run_pairwise_batch(
+        cube(n), cube(mean), cube(ssd), cube(lo),
+        method=method, levels=labels, by=str(by), control=control,
+        segments=seg.values(keep), keys=[str(k) for k in keys],
+        metrics=[s[0] for s in specs], options=options, n_missing=cube(miss), notes=notes,
+    )  # fmt: skip

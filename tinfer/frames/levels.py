@@ -38,6 +38,18 @@ def label_pair(first: Any, second: Any) -> tuple[str, str]:
     return a, b
 
 
+def level_labels(levels) -> list[str]:
+    """Text labels of levels, made distinct where two share their text (1 and "1").
+
+    >>> level_labels([1, "1", "b"])
+    ['1', "'1'", 'b']
+    """
+    texts = [str(py_value(v)) for v in levels]
+    seen = {t: texts.count(t) for t in texts}
+    return [repr(py_value(v)) if seen[t] > 1 and not isinstance(py_value(v), int) else t
+            for v, t in zip(levels, texts, strict=True)]  # fmt: skip
+
+
 def levels_text(values: Sequence) -> str:
     """The first ten levels as a readable list for messages.
 

@@ -18,19 +18,7 @@ from ..core.summary import Summary
 from ..errors import DataError
 from ..results.pairwise import PairwiseResult
 from .columns import column, reject_inf, to_float
-from .levels import group_codes, levels_text, py_value
-
-
-def level_labels(levels) -> list[str]:
-    """Text labels of levels, made distinct where two share their text (1 and "1").
-
-    >>> level_labels([1, "1", "b"])
-    ['1', "'1'", 'b']
-    """
-    texts = [str(py_value(v)) for v in levels]
-    seen = {t: texts.count(t) for t in texts}
-    return [repr(py_value(v)) if seen[t] > 1 and not isinstance(py_value(v), int) else t
-            for v, t in zip(levels, texts, strict=True)]  # fmt: skip
+from .levels import group_codes, level_labels, levels_text, py_value
 
 
 def pairwise_frame(

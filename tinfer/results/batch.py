@@ -81,6 +81,12 @@ class BatchResult(Card):
     effect : numpy.ndarray
         Hedges' g (two-sample), Cohen's d (one-sample) or d_z (paired); the noncentral-t
         interval is computed on first use (``effect_ci``), as it dominates the cost.
+    pairs, row_pair, p_family
+        Pairwise batches (``compare(..., pairwise=...)``) only: the pairs of levels
+        ``(first, second)``, each row's pair, and the p-value adjusted within its family
+        (the pairs of one metric in one segment) by the pairwise method; ``p_adjusted`` then
+        adjusts ``p_family`` over all rows by ``adjust``, and ``ci_low``/``ci_high`` are the
+        family's intervals. ``p`` is each pair's own p-value.
     """
 
     design: str
@@ -121,6 +127,9 @@ class BatchResult(Card):
     effect_name: str
     warnings: tuple[str, ...] = ()
     n_missing: np.ndarray | None = field(default=None, repr=False)
+    pairs: tuple[tuple[str, str], ...] = ()
+    row_pair: np.ndarray | None = field(default=None, repr=False)
+    p_family: np.ndarray | None = field(default=None, repr=False)
 
     # ------------------------------------------------------------------ counts
     @property
@@ -172,12 +181,19 @@ class BatchResult(Card):
         return procedures.effect_interval_rows(self.design, a, b, self.null, self.level, self.side)
 
     def segment_labels(self) -> list[str]:
-        """Each row's segment as text, ``key=value`` pairs joined by commas."""
+        """Each row's segment as text, ``key=value`` pairs joined by commas (and the pair,
+        ``first minus second``, in a pairwise batch)."""
         texts = [
             ", ".join(f"{k}={v}" for k, v in zip(self.keys, seg, strict=True)) or "all rows"
             for seg in self.segments
         ]
-        return [texts[i] for i in self.row_segment]
+        if self.row_pair is None:
+            return [texts[i] for i in self.row_segment]
+        pairs = [f"{a} minus {b}" for a, b in self.pairs]
+        return [
+            (f"{texts[s]} · " if self.keys else "") + pairs[p]
+            for s, p in zip(self.row_segment, self.row_pair, strict=True)
+        ]
 
     # ------------------------------------------------------------------ tables
     def to_frame(self) -> pd.DataFrame:
@@ -188,9 +204,14 @@ class BatchResult(Card):
         data: dict[str, Any] = {}
         for j, k in enumerate(self.keys):
             data[k] = [self.segments[i][j] for i in self.row_segment]
+        if self.row_pair is not None:
+            data["first"] = [self.pairs[i][0] for i in self.row_pair]
+            data["second"] = [self.pairs[i][1] for i in self.row_pair]
         data["metric"] = [self.metrics[i] for i in self.row_metric]
         for name in RESULT_COLUMNS[1:10]:
             data[name] = getattr(self, name)
+            if name == "p" and self.p_family is not None:
+                data["p_family"] = self.p_family
         data["effect"] = self.effect
         data["effect_ci_low"], data["effect_ci_high"] = self.effect_ci
         two = self.design == "two-sample"

@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from ..core.pairwise import SHORT
 from .card import Card
 from .format import column_decimals, fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p
 from .parts import GroupStats
@@ -30,16 +31,7 @@ METHOD_NAMES = {
     "none": "separate Welch tests, no adjustment",
 }
 #: Short names for headlines.
-SHORT_NAMES = {
-    "games-howell": "Games-Howell",
-    "tukey-kramer": "Tukey-Kramer",
-    "dunnett": "Dunnett",
-    "holm": "Welch tests, Holm",
-    "hochberg": "Welch tests, Hochberg",
-    "benjamini-hochberg": "Welch tests, Benjamini-Hochberg",
-    "benjamini-yekutieli": "Welch tests, Benjamini-Yekutieli",
-    "none": "Welch tests, unadjusted",
-}
+SHORT_NAMES = SHORT
 #: Columns of the pairs table in the card and the text form: key and title.
 PAIR_HEADERS = (
     ("pair", "pair"),
