@@ -93,6 +93,7 @@ def run_pairwise(
             warnings.append(
                 "Level(s) with fewer than two values take no part: " + ", ".join(dropped) + "."
             )
+    warnings += _step_notes(method, fam, labels, first, second, level)
     missing = list(n_missing) if n_missing is not None else [0] * len(labels)
     with np.errstate(invalid="ignore", divide="ignore"):  # a level with one value has no SD
         groups = tuple(
@@ -126,6 +127,27 @@ def run_pairwise(
         created=now_iso(),
         fingerprint=fingerprint(f"pairwise {method}", None, summaries),
     )
+
+
+def _step_notes(method, fam, labels, first, second, level) -> list[str]:
+    """A note where Holm's or Hochberg's p finds a pair whose Bonferroni interval covers 0."""
+    if method not in ("holm", "hochberg"):
+        return []
+    with np.errstate(invalid="ignore"):
+        found = fam.p_family[0] <= 1.0 - level
+    covers = (fam.ci_low[0] <= 0) & (fam.ci_high[0] >= 0)
+    odd = [
+        f"{labels[a]} minus {labels[b]}"
+        for a, b, f, c in zip(first, second, found, covers, strict=True)
+        if f and c
+    ]
+    if not odd:
+        return []
+    name = "Holm's step-down" if method == "holm" else "Hochberg's step-up"
+    return [
+        f"{name} finds {', '.join(odd)} although the Bonferroni interval still reaches 0: the "
+        "step-wise p-values are sharper than simultaneous intervals can be."
+    ]
 
 
 def _control_index(labels: list[str], against, by: str) -> int | None:
