@@ -138,6 +138,7 @@ def equivalence_for(
     design: str,
     summaries,
     estimate: float,
+    estimate_lo: float = 0.0,
     se: float,
     df: float,
     null: float,
@@ -165,8 +166,10 @@ def equivalence_for(
             if isinstance(spec.margin, tuple)
             else spec.margin * sd
         )
-    low, high = core_eq.band(null, raw, spec.worse, spec.superior)
-    r = core_eq.tost(estimate, se, df, low, high, level)
+    # offsets from null, so that the tests keep a margin's digits next to a null near 1e9
+    lo_off, hi_off = core_eq.band(0.0, raw, spec.worse, spec.superior)
+    low, high = null + lo_off, null + hi_off
+    r = core_eq.tost(estimate, se, df, lo_off, hi_off, level, null=null, estimate_lo=estimate_lo)
     decision = bool(r.inside)
     claim = Claim(
         margin=spec.margin,

@@ -140,6 +140,7 @@ def build(
     if margin_spec is not None:
         words = dict(labels=labels, comparison=comparison, units=units, func=func)
         est = {k: nums[k] for k in ("estimate", "se", "df")}
+        est["estimate_lo"] = _scalar(c.estimate_lo)
         equivalence = equivalence_for(
             margin_spec, design=design, summaries=tuple(summaries), null=null, level=level,
             **est, **words,

@@ -45,13 +45,47 @@ def _is_normal(df) -> np.ndarray:
     return np.isinf(np.asarray(df, dtype=np.float64))
 
 
-def cdf(t, df) -> np.ndarray:
-    """P(T <= t) for T with ``df`` degrees of freedom (``inf`` gives the standard normal)."""
+def _central(s, df) -> np.ndarray:
+    """P(0 < T < s) for s >= 0: I_x(1/2, df/2) / 2 with x = s^2 / (df + s^2) (A&S 26.7.1).
+
+    Keeps every digit near zero, where the lower-tail route loses them (3e-9 relative at
+    df = 1, t = 1e-8 with scipy's stdtr).
+    """
+    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+        x = s * s / (df + s * s)
+        return 0.5 * special.betainc(0.5, df / 2.0, x)
+
+
+def _cdf_direct(t, df) -> np.ndarray:
+    """P(T <= t) from the lower-tail route, with the central series for |t| < 1."""
     t, df = np.broadcast_arrays(np.asarray(t, float), np.asarray(df, float))
+    normal = _is_normal(df)
+    d = np.where(normal, 1.0, df)
     with np.errstate(invalid="ignore"):
-        return np.where(
-            _is_normal(df), special.ndtr(t), special.stdtr(np.where(_is_normal(df), 1.0, df), t)
-        )
+        out = np.where(normal, special.ndtr(t), special.stdtr(d, t))
+    near = (np.abs(t) < 1.0) & ~normal
+    if near.any():
+        out = np.array(out, copy=True)
+        out[near] = 0.5 + np.copysign(_central(np.abs(t[near]), d[near]), t[near])
+    return out
+
+
+def cdf(t, df) -> np.ndarray:
+    """P(T <= t) for T with ``df`` degrees of freedom (``inf`` gives the standard normal).
+
+    Where the lower tail underflows although the area is representable (t below -1e154 at
+    small df), the area comes from the mirrored upper tail in product form (:func:`_far_tail`).
+    """
+    t, df = np.broadcast_arrays(np.asarray(t, float), np.asarray(df, float))
+    out = _cdf_direct(t, df)
+    lost = (out == 0.0) & np.isfinite(t)
+    if lost.any():
+        out = np.array(out, copy=True)
+        s, d = -t[lost], df[lost]
+        with np.errstate(under="ignore", over="ignore"):
+            far = (d < 30.0) & (s * s > d)  # the product form keeps the last digits there
+            out[lost] = np.where(far, _far_tail(np.where(far, s, 1.0), d), np.exp(log_sf(s, d)))
+    return out
 
 
 def sf(t, df) -> np.ndarray:
@@ -60,13 +94,7 @@ def sf(t, df) -> np.ndarray:
     Where that underflows although the area is representable (t near 1e200 at small df),
     the area comes from :func:`log_sf`.
     """
-    t = np.asarray(t, float)
-    out = cdf(-t, df)
-    lost = (out == 0.0) & np.isfinite(t)
-    if lost.any():
-        with np.errstate(under="ignore"):
-            out = np.where(lost, np.exp(log_sf(np.where(lost, t, 0.0), df)), out)
-    return out
+    return cdf(-np.asarray(t, float), df)
 
 
 def log_sf(t, df) -> np.ndarray:
@@ -87,7 +115,7 @@ def log_sf(t, df) -> np.ndarray:
     """
     t, df = np.broadcast_arrays(np.asarray(t, float), np.asarray(df, float))
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        direct = np.log(cdf(-t, df))
+        direct = np.log(_cdf_direct(-t, df))
         normal = special.log_ndtr(-t)
     deep = (t > 1.0) & ~(direct > _LOG_TINY) & ~_is_normal(df)
     use_laguerre = deep & (df >= _SERIES_MAX_DF) & (t < 1e100)  # t * t stays finite
@@ -134,32 +162,177 @@ def _log_sf_laguerre(t: np.ndarray, df: np.ndarray) -> np.ndarray:
     return log_f - (df + 1.0) / 2.0 * np.log1p(t * t / df) + log_int
 
 
-def pdf(t, df) -> np.ndarray:
-    """Density of Student's t at ``t``."""
+def log_pdf(t, df) -> np.ndarray:
+    """Natural log of the density of Student's t at ``t`` (finite for every finite t)."""
     t, df = np.broadcast_arrays(np.asarray(t, float), np.asarray(df, float))
     normal = _is_normal(df)
     d = np.where(normal, 1.0, df)
-    with np.errstate(over="ignore", invalid="ignore"):
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         log_c = log_gamma_half_ratio(d / 2) - 0.5 * np.log(d * np.pi)
         big = np.abs(t) > 1e100  # t * t would overflow
         tb = np.where(big, np.abs(t), 1.0)
         log_kernel = np.where(
             big, 2 * np.log(tb) - np.log(d) + np.log1p(d / (tb * tb)), np.log1p(t * t / d)
         )
-        dens = np.exp(log_c - (d + 1) / 2 * log_kernel)
-    return np.where(normal, np.exp(-0.5 * t * t) / np.sqrt(2 * np.pi), dens)
+        return np.where(
+            normal, -0.5 * t * t - 0.5 * np.log(2 * np.pi), log_c - (d + 1) / 2 * log_kernel
+        )
+
+
+def pdf(t, df) -> np.ndarray:
+    """Density of Student's t at ``t``."""
+    t, df = np.broadcast_arrays(np.asarray(t, float), np.asarray(df, float))
+    with np.errstate(under="ignore"):
+        return np.where(
+            _is_normal(df), np.exp(-0.5 * t * t) / np.sqrt(2 * np.pi), np.exp(log_pdf(t, df))
+        )
 
 
 def ppf(q, df) -> np.ndarray:
-    """The t value with lower-tail area ``q`` (percentile, quantile)."""
+    """The t value with lower-tail area ``q`` (percentile, quantile).
+
+    Solved in the smaller tail (``1 - q`` is exact for q >= 1/2) on the library's own tail
+    area, so the digits do not depend on the scipy version: closed forms at df = 1 and 2,
+    otherwise a safeguarded Newton iteration on log t, started from scipy's inverse and kept
+    inside a bracket that always holds the answer (the normal percentile below, the
+    power-law tail ``P(T > s) <= K s^-df`` above). Areas of 0.1 and more use the central
+    area :func:`_central` as the residual, smaller ones the log tail :func:`log_sf`.
+    """
     q, df = np.broadcast_arrays(np.asarray(q, float), np.asarray(df, float))
+    lower = q <= 0.5
+    p = np.where(lower, q, 1.0 - q)  # exact (Sterbenz) for q in [1/2, 1]
     normal = _is_normal(df)
-    return np.where(normal, special.ndtri(q), special.stdtrit(np.where(normal, 1.0, df), q))
+    with np.errstate(all="ignore"):
+        s = np.where(normal, -special.ndtri(p), _upper_percentile(p, np.where(normal, 1.0, df)))
+        s = np.where((q < 0) | (q > 1) | np.isnan(df) | (df <= 0), np.nan, s)
+    return np.where(lower & (s != 0.0), -s, s) + 0.0  # + 0.0: no -0.0 at the median
 
 
 def isf(q, df) -> np.ndarray:
     """The t value with upper-tail area ``q``, as the negated lower percentile (keeps digits)."""
     return -ppf(q, df)
+
+
+_CENTRAL_P = 0.1  # at upper areas from here to 1/2 the residual is the central area
+_LOG_MAX = float(np.log(np.finfo(float).max))
+
+
+def _upper_percentile(p, df) -> np.ndarray:
+    """s >= 0 with P(T > s) = p for 0 <= p <= 1/2 and finite df > 0 (nan elsewhere)."""
+    p, df = np.broadcast_arrays(np.asarray(p, float), np.asarray(df, float))
+    one, two = df == 1.0, df == 2.0
+    s = np.full(p.shape, np.nan)
+    # df = 1: s = cot(pi p); df = 2: s = (1 - 2p) / sqrt(2 p (1 - p)) (from the closed-form cdfs)
+    s = np.where(one, np.where(p > 0.25, np.tan(np.pi * (0.5 - p)), 1.0 / np.tan(np.pi * p)), s)
+    s = np.where(two, (1.0 - 2.0 * p) / np.sqrt(2.0 * p * (1.0 - p)), s)
+    s = np.where(p == 0.5, 0.0, s)
+    s = np.where(p == 0.0, np.inf, s)
+    solve = ~one & ~two & (p > 0.0) & (p < 0.5) & (df > 0)
+    if solve.any():
+        s[solve] = _solve_upper(p[solve], df[solve])
+    return s
+
+
+def _solve_upper(p: np.ndarray, df: np.ndarray) -> np.ndarray:
+    """Safeguarded Newton on u = log s for P(T > s) = p, 0 < p < 1/2 (vectorised)."""
+    log_p = np.log(p)
+    central = p >= _CENTRAL_P
+    # Bracket in u. Below: the normal percentile (the t tail is heavier everywhere).
+    lo = np.log(-special.ndtri(p))
+    # Above: P(T > s) <= K s^-df with K = c df^((df-1)/2), c the density's constant.
+    log_k = log_gamma_half_ratio(df / 2) - 0.5 * np.log(df * np.pi) + (df - 1) / 2 * np.log(df)
+    hi = (log_k - log_p) / df
+    over = hi > _LOG_MAX
+    if over.any():  # the answer may not be representable: then it is inf
+        beyond = log_sf(np.full(over.sum(), np.finfo(float).max), df[over]) > log_p[over]
+        hi[over] = _LOG_MAX
+        lo[over] = np.where(beyond, _LOG_MAX, lo[over])  # lo == hi: nothing to solve
+    with np.errstate(all="ignore"):
+        start = np.log(-special.stdtrit(df, p))
+    u = np.where((start > lo) & (start < hi), start, 0.5 * (lo + hi))
+    u = np.where(lo >= _LOG_MAX, _LOG_MAX, u)
+    active = lo < hi
+    for _ in range(200):
+        if not active.any():
+            break
+        ua, dfa = u[active], df[active]
+        resid, slope = _residual(np.exp(ua), p[active], dfa, central[active])
+        with np.errstate(all="ignore"):
+            step = resid / slope
+        lo_a = np.where(resid > 0, ua, lo[active])
+        hi_a = np.where(resid < 0, ua, hi[active])
+        new = ua + step
+        out = ~((new > lo_a) & (new < hi_a)) | ~np.isfinite(new)
+        new = np.where(out, 0.5 * (lo_a + hi_a), new)
+        done = (np.abs(new - ua) <= 1e-13 * np.maximum(1.0, np.abs(ua))) & ~out
+        done |= resid == 0.0
+        idx = np.flatnonzero(active)
+        u[idx] = np.where(resid == 0.0, ua, new)
+        lo[idx], hi[idx] = lo_a, hi_a
+        active[idx[done | (hi_a - lo_a <= 4e-16 * np.maximum(1.0, np.abs(hi_a)))]] = False
+    with np.errstate(over="ignore"):
+        s = np.where(u >= _LOG_MAX, np.inf, np.exp(u))
+    return _last_step(s, p, df, central)
+
+
+def _residual(s, p, df, central) -> tuple[np.ndarray, np.ndarray]:
+    """Residual in u = log s and its slope: the central area's (1/2 - p - C(s), s f(s)) at
+    central areas, the log tail's (log P(T > s) - log p, s f(s) / P(T > s)) elsewhere."""
+    resid, slope = np.empty_like(s), np.empty_like(s)
+    with np.errstate(all="ignore"):
+        lpdf = log_pdf(s, df)
+        c, t = central, ~central
+        resid[c] = 0.5 - p[c] - _central(s[c], df[c])
+        slope[c] = np.exp(np.log(s[c]) + lpdf[c])
+        lsf = log_sf(s[t], df[t])
+        resid[t] = lsf - np.log(p[t])
+        slope[t] = np.exp(np.log(s[t]) + lpdf[t] - lsf)
+    return resid, slope
+
+
+def _last_step(s, p, df, central) -> np.ndarray:
+    """One Newton step on s itself: exp(u) is only as good as u's last digit (3e-15 at
+    |u| = 27), and log p holds only ~1e-13 of p when |log p| is in the hundreds, an error
+    divided by df in s, so at small df the far tail is taken as an area, not a log."""
+    ok = np.isfinite(s) & (s > 0)
+    far = ok & ~central & (df < 30.0) & (s * s > df)
+    logs = ok & ~central & ~far
+    mid = ok & central
+    s = np.array(s, copy=True)
+    with np.errstate(under="ignore"):
+        if mid.any():
+            sm, dm = s[mid], df[mid]
+            s[mid] = sm + (0.5 - p[mid] - _central(sm, dm)) / np.exp(log_pdf(sm, dm))
+        if far.any():
+            sf_, df_ = s[far], df[far]
+            s_f = np.exp(np.log(sf_) + log_pdf(sf_, df_))  # s f(s): f alone may underflow
+            s[far] = sf_ - sf_ * (p[far] - _far_tail(sf_, df_)) / s_f
+        if logs.any():
+            sl, dl = s[logs], df[logs]
+            lsf = log_sf(sl, dl)
+            slope = np.exp(np.log(sl) + log_pdf(sl, dl) - lsf)
+            s[logs] = sl + sl * (lsf - np.log(p[logs])) / slope
+    return s
+
+
+def _far_tail(s: np.ndarray, df: np.ndarray) -> np.ndarray:
+    """P(T > s) for s^2 >= df as a product of well-scaled factors, each to rounding.
+
+    ``I_x(a, 1/2) / 2 = x^a (1 - x)^(1/2) F(a + 1/2, 1; a + 1; x) / (2 a B(a, 1/2))`` with
+    a = df / 2 and x = df / (df + s^2) (A&S 26.5.23); ``x^a`` is split as
+    ``(sqrt(df) / m)^df (2^-k)^df (1 + df / s^2)^-a`` with s = m 2^k, so no factor
+    underflows and no large logarithm is rounded.
+    """
+    a = df / 2.0
+    k = np.floor(np.log2(s) / 2.0)
+    m = np.ldexp(s, -k.astype(int))
+    with np.errstate(under="ignore"):
+        r = df / s / s  # df / s^2 (0 when it underflows: then every correction is 1)
+        x = r / (1.0 + r)
+        lead = np.power(np.sqrt(df) / m, df) * np.power(np.ldexp(1.0, -k.astype(int)), df)
+        corr = np.power(1.0 + r, -a - 0.5) * special.hyp2f1(a + 0.5, 1.0, a + 1.0, x)
+        const = np.exp(log_gamma_half_ratio(a)) / (2.0 * a * np.sqrt(np.pi))
+    return lead * corr * const
 
 
 def p_value(t, df, side: str) -> tuple[np.ndarray, np.ndarray]:

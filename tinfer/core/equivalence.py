@@ -63,7 +63,7 @@ class Tost:
     inside: np.ndarray
 
 
-def tost(estimate, se, df, low, high, level=0.95) -> Tost:
+def tost(estimate, se, df, low, high, level=0.95, *, null=0.0, estimate_lo=0.0) -> Tost:
     """Two one-sided t tests of ``low < true value < high`` at significance ``1 - level``.
 
     Parameters
@@ -72,11 +72,17 @@ def tost(estimate, se, df, low, high, level=0.95) -> Tost:
         Estimate (a mean or a mean difference), its standard error and degrees of freedom
         (Welch or pooled, as the ordinary test uses; ``inf`` for the normal).
     low, high : array_like
-        The band in the units of ``estimate`` (absolute limits, not offsets). ``-inf`` or
-        ``inf`` gives a one-sided claim.
+        The band in the units of ``estimate``, as offsets from ``null`` (with the default
+        ``null=0`` these are the absolute limits). ``-inf`` or ``inf`` gives a one-sided
+        claim.
     level : array_like, default 0.95
         ``1 - alpha``; each one-sided test runs at ``alpha``, the matching interval is at
         ``1 - 2 alpha``. Must exceed 0.5.
+    null, estimate_lo : array_like, default 0
+        The reference value and the rounding remainder of ``estimate``. The statistics use
+        ``(estimate - null) + estimate_lo - offset``, so that data near 1e9 and a margin of
+        0.2 keep their digits (``null + margin`` alone would round the margin to the
+        spacing of doubles near ``null``).
 
     Returns
     -------
@@ -94,12 +100,16 @@ def tost(estimate, se, df, low, high, level=0.95) -> Tost:
     >>> round(float(r.ci_low), 4), round(float(r.ci_high), 4), float(r.ci_level)
     (-0.3899, 0.9899, 0.9)
     """
-    estimate, se, df, low, high, level = np.broadcast_arrays(
-        *(np.asarray(v, dtype=np.float64) for v in (estimate, se, df, low, high, level))
+    estimate, se, df, low, high, level, null, estimate_lo = np.broadcast_arrays(
+        *(
+            np.asarray(v, dtype=np.float64)
+            for v in (estimate, se, df, low, high, level, null, estimate_lo)
+        )
     )
+    shift = (estimate - null) + estimate_lo
     with np.errstate(divide="ignore", invalid="ignore"):
-        t_lower = (estimate - low) / se
-        t_upper = (estimate - high) / se
+        t_lower = (shift - low) / se
+        t_upper = (shift - high) / se
     p_lower, log_p_lower = dist.p_value(t_lower, df, "upper")
     p_upper, log_p_upper = dist.p_value(t_upper, df, "lower")
     p = np.maximum(p_lower, p_upper)
@@ -117,8 +127,8 @@ def tost(estimate, se, df, low, high, level=0.95) -> Tost:
         log_p_upper=log_p_upper,
         p=p,
         log_p=log_p,
-        ci_low=estimate - half,
-        ci_high=estimate + half,
+        ci_low=(estimate + estimate_lo) - half,
+        ci_high=(estimate + estimate_lo) + half,
         ci_level=ci_level,
         inside=inside,
     )

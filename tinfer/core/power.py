@@ -23,6 +23,8 @@ from __future__ import annotations
 import numpy as np
 from scipy import special
 
+from . import distribution as dist
+
 N_MAX = 10**9  # largest sample size the integer search will consider
 _RATIO_TOL = 1e-9  # ratio * n1 within this of a whole number counts as that number
 
@@ -92,13 +94,13 @@ def power_from_ncp(ncp, df, level=0.95, side: str = "two-sided") -> np.ndarray:
     alpha = 1.0 - level
     with np.errstate(all="ignore"):
         if side == "two-sided":
-            c = special.stdtrit(df, 1.0 - alpha / 2.0)
+            c = dist.isf(alpha / 2.0, df)  # not ppf(1 - alpha / 2): that rounds at tiny alpha
             return nct_cdf(df, -ncp, -c) + nct_cdf(df, ncp, -c)
         if side == "upper":
-            c = special.stdtrit(df, 1.0 - alpha)
+            c = dist.isf(alpha, df)
             return nct_cdf(df, -ncp, -c)
         if side == "lower":
-            c = special.stdtrit(df, alpha)
+            c = dist.ppf(alpha, df)
             return nct_cdf(df, ncp, c)
     raise ValueError(f"side must be 'two-sided', 'upper' or 'lower', not {side!r}")
 
@@ -302,7 +304,7 @@ def equivalence_power(
     diff, low, high, sd, level, df, scale = np.broadcast_arrays(
         diff, low, high, sd, level, df, scale
     )
-    c = special.stdtrit(df, level)
+    c = dist.ppf(level, df)
     with np.errstate(all="ignore"):
         d_up = (high - diff) * scale / sd
         d_low = (low - diff) * scale / sd

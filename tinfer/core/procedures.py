@@ -31,6 +31,8 @@ class Computed:
     effect_low: np.ndarray
     effect_high: np.ndarray
     effect_df: np.ndarray
+    #: rounding remainder of ``estimate`` (one-sample means near 1e9 keep it separately)
+    estimate_lo: np.ndarray | float = 0.0
 
 
 def t_interval(estimate, se, df, level, side: str) -> tuple[np.ndarray, np.ndarray]:
@@ -99,7 +101,7 @@ def one_sample(
     )
     estimate = np.asarray(s.mean, float)
     lo, hi = t_interval(estimate + _lo(s), se, df, level, side)
-    return replace(c, estimate=estimate, ci_low=lo, ci_high=hi)
+    return replace(c, estimate=estimate, ci_low=lo, ci_high=hi, estimate_lo=_lo(s))
 
 
 def _lo(s: Summary):

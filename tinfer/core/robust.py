@@ -20,12 +20,12 @@ so the trimmed tests reduce to the ordinary t tests.
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy import special
 
-from .procedures import Computed, finish
+from .procedures import Computed, finish, t_interval
 
 # floor(trim * n) with a guard against products such as 0.29 * 100 = 28.999999999999996
 _FLOOR_GUARD = 1e-9
@@ -71,6 +71,7 @@ class Trimmed:
     mean: np.ndarray
     wvar: np.ndarray
     trim: float
+    mean_lo: np.ndarray | float = 0.0  # rounding remainder of ``mean``
 
     @classmethod
     def of(cls, values, trim: float) -> Trimmed:
@@ -80,13 +81,14 @@ class Trimmed:
         g = int(trim_count(n, trim))
         if g > 0:
             x = np.sort(x, axis=-1)  # numpy's vectorised sort beats np.partition here
-            mean = x[..., g : n - g].mean(axis=-1)
+            mean, lo = _corrected_mean(x[..., g : n - g])
             x = np.clip(x, x[..., g : g + 1], x[..., n - g - 1 : n - g])
         else:
-            mean = x.mean(axis=-1)
-        wmean = x.mean(axis=-1, keepdims=True)
-        dev = x - wmean  # two-pass winsorised variance
-        wvar = np.einsum("...i,...i->...", dev, dev) / (n - 1.0)
+            mean, lo = _corrected_mean(x)
+        # corrected two-pass winsorised variance (Chan, Golub and LeVeque 1983, eq. 1.7)
+        dev = x - x.mean(axis=-1, keepdims=True)
+        s1 = dev.sum(axis=-1)
+        wvar = (np.einsum("...i,...i->...", dev, dev) - s1 * s1 / n) / (n - 1.0)
         shape = np.shape(mean)
         return cls(
             n=np.full(shape, n),
@@ -95,6 +97,7 @@ class Trimmed:
             mean=np.asarray(mean),
             wvar=np.asarray(wvar),
             trim=float(trim),
+            mean_lo=np.asarray(lo),
         )
 
     @property
@@ -113,6 +116,15 @@ class Trimmed:
     def se(self) -> np.ndarray:
         """Standard error of the trimmed mean (Yuen 1974)."""
         return np.sqrt(self.d)
+
+
+def _corrected_mean(x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Mean along the last axis with its rounding remainder: a first mean, then the mean of
+    the deviations from it (so data near 1e9 keep the digits of their differences)."""
+    m0 = x.mean(axis=-1)
+    corr = (x - m0[..., None]).mean(axis=-1)
+    mean = m0 + corr
+    return mean, (m0 - mean) + corr
 
 
 def winsor_normal_sd(trim: float) -> float:
@@ -153,10 +165,13 @@ def yuen_one_sample(s: Trimmed, null=0.0, level=0.95, side: str = "two-sided") -
     """
     se = s.se
     df = s.h - 1.0
+    shifted = (s.mean - null) + s.mean_lo  # as in procedures.one_sample
     with np.errstate(divide="ignore", invalid="ignore"):
-        t_eff = (s.mean - null) / se
+        t_eff = shifted / se
         scale = winsor_normal_sd(s.trim) * se / s.wsd
-    return finish(s.mean, se, df, null, level, side, t_eff, df, scale)
+    c = finish(shifted, se, df, 0.0, level, side, t_eff, df, scale)
+    lo, hi = t_interval(s.mean + s.mean_lo, se, df, level, side)
+    return replace(c, estimate=np.asarray(s.mean), ci_low=lo, ci_high=hi, estimate_lo=s.mean_lo)
 
 
 def yuen_two_sample(
@@ -179,7 +194,7 @@ def yuen_two_sample(
     (1.3, 4.117, 6.6)
     """
     da, db = a.d, b.d
-    estimate = a.mean - b.mean
+    estimate = (a.mean - b.mean) + (a.mean_lo - b.mean_lo)
     se = np.sqrt(da + db)
     with np.errstate(divide="ignore", invalid="ignore"):
         w = da / (da + db)  # Welch-type df in shares of da + db (no over- or underflow)

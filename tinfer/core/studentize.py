@@ -19,6 +19,7 @@ from __future__ import annotations
 import numpy as np
 from scipy import special
 
+from . import distribution as dist
 from . import parallel
 
 GL16 = np.polynomial.legendre.leggauss(16)
@@ -196,9 +197,7 @@ def tail(c, df, log_g, log_bound, beta):
 
 def t_upper(p, df) -> np.ndarray:
     """The upper ``p`` point of Student's t (normal for infinite df)."""
-    p, df = np.broadcast_arrays(np.asarray(p, float), np.asarray(df, float))
-    fin = np.where(np.isinf(df), 1.0, df)
-    return np.where(np.isinf(df), -special.ndtri(p), -special.stdtrit(fin, p))
+    return dist.isf(p, df)
 
 
 def solve(tail, alpha, low, high, iterations: int = 60) -> np.ndarray:
