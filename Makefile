@@ -3,12 +3,13 @@ PYTHON ?= python3
 VENV   := .venv
 PY     := $(VENV)/bin/python
 STAMP  := $(VENV)/.installed
+FLOORS := .venv-floors
 DEMO   := $(VENV)/.installed-demo
 PIP    := $(PY) -m pip install -qq --disable-pip-version-check --progress-bar off
 RECORDS := records
 CHROMIUM := /usr/bin/chromium
 
-.PHONY: setup setup-demo demo test lint unit notebooks-check docs browser-deps lab notebooks bench readme-image clean
+.PHONY: setup setup-demo demo test lint unit floors notebooks-check docs browser-deps lab notebooks bench readme-image clean
 
 # `make test` needs the whole developer tool chain; `make demo` only the package with its
 # display extra and a notebook runner (the "demo" extra), a much smaller environment.
@@ -47,13 +48,28 @@ lint: setup
 unit: setup browser-deps
 	$(PY) -m pytest -q tests tinfer
 
+# The unit tests again on the oldest declared versions (.ci/floors.txt), in their own
+# environment: the browser checks and the docstring-style check need only the newest.
+$(FLOORS)/.installed: .ci/floors.txt pyproject.toml
+	rm -rf $(FLOORS)
+	$(PYTHON) -m venv $(FLOORS)
+	@echo "Installing the oldest declared versions into $(FLOORS) ..."
+	$(FLOORS)/bin/python -m pip install -qq --disable-pip-version-check --progress-bar off \
+		-r .ci/floors.txt pytest hypothesis mpmath
+	$(FLOORS)/bin/python -m pip install -qq --disable-pip-version-check --no-deps -e .
+	touch $@
+
+floors: $(FLOORS)/.installed
+	$(FLOORS)/bin/python -m pytest -q -p no:cacheprovider --disable-warnings -m "not browser" \
+		--ignore=tests/browser --ignore=tests/test_docstrings.py tests tinfer
+
 notebooks-check: setup
 	$(PY) -m pytest -q --nbval --nbval-current-env -p no:randomly notebooks
 
 docs: setup
 	$(PY) -m sphinx -W --keep-going -q -b html docs docs/_build/html
 
-test: lint unit notebooks-check docs
+test: lint unit floors notebooks-check docs
 	@echo "make test: all checks passed"
 
 ## Re-execute the notebooks in place (their stored outputs are what nbval checks against).
@@ -70,4 +86,4 @@ bench: setup
 	@for f in benchmarks/bench_*.py; do echo "== $$f"; $(PY) $$f; done
 
 clean:
-	rm -rf $(VENV) $(RECORDS) docs/_build test-output
+	rm -rf $(VENV) $(FLOORS) $(RECORDS) docs/_build test-output

@@ -10,6 +10,7 @@ import math
 
 import numpy as np
 import pytest
+from references import SCIPY_PPF_RTOL
 from scipy import stats
 
 from tinfer.core.equivalence import band, standardiser, tost
@@ -45,8 +46,9 @@ class TestTost:
         assert clear.sum() > 19_900
         assert np.array_equal(r.inside[clear], expected[clear])
         assert 0.05 < expected.mean() < 0.95  # both outcomes are exercised
-        np.testing.assert_allclose(r.ci_low, lo, rtol=1e-12, atol=1e-12)
-        np.testing.assert_allclose(r.ci_high, hi, rtol=1e-12, atol=1e-12)
+        tol = SCIPY_PPF_RTOL  # the reference's own accuracy (tests/references.py)
+        np.testing.assert_allclose(r.ci_low, lo, rtol=tol, atol=tol * 2e2)
+        np.testing.assert_allclose(r.ci_high, hi, rtol=tol, atol=tol * 2e2)
         np.testing.assert_allclose(r.ci_level, 2 * level - 1, rtol=1e-12)
 
     @pytest.mark.parametrize("seed", range(8))
