@@ -27,6 +27,7 @@ from .errors import (
 from .frames import compare_summaries
 from .results import (
     BatchResult,
+    BayesFactor,
     BootstrapCheck,
     Diagnostics,
     Effect,
@@ -43,6 +44,7 @@ from .results.provenance import VERSION as __version__
 
 __all__ = [
     "BatchResult",
+    "BayesFactor",
     "BootstrapCheck",
     "DataError",
     "Diagnostics",

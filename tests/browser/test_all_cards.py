@@ -34,6 +34,7 @@ KINDS = (
     "batch",
     "checks",
     "bootstrap",
+    "bayes factor",
     "pairwise",
     "against a control",
 )
@@ -70,6 +71,7 @@ def _objects() -> dict[str, object]:
         "batch": bakery.tinfer.compare(["rise_mm", "crust_mm"], by="recipe", within="branch"),
         "checks": r.check(),
         "bootstrap": r.bootstrap(1999, seed=7),
+        "bayes factor": r.bayes_factor(side="upper"),
         "pairwise": glaze.tinfer.pairwise("gloss", by="recipe"),
         "against a control": glaze.tinfer.pairwise("gloss", by="recipe", against="recipe A"),
     }

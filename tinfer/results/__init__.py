@@ -9,6 +9,7 @@ read-only copies) and renders nothing when it is built. Its convenience methods 
 from __future__ import annotations
 
 from .batch import BatchResult
+from .bayes import BayesFactor
 from .bootstrap import BootstrapCheck
 from .diagnostics import Diagnostics
 from .equivalence import Equivalence, OneSidedTest
@@ -20,6 +21,7 @@ from .ttest import TResult
 
 __all__ = [
     "BatchResult",
+    "BayesFactor",
     "BootstrapCheck",
     "Diagnostics",
     "Effect",

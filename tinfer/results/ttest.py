@@ -268,6 +268,31 @@ class TResult(Card):
 
         return explore_result(self)
 
+    # ------------------------------------------------------------------ evidence
+    def bayes_factor(self, scale: float = 0.7071067811865476, side=None, level=None):
+        """The default (JZS) Bayes factor for an effect over no effect, both ways.
+
+        The Cauchy prior of scale ``scale`` (r, default sqrt(2)/2) on the standardised
+        effect of Rouder et al. (2009); ``side`` "upper" or "lower" truncates it to one side
+        (Morey and Wagenmakers 2014) and defaults to this result's side. Two samples use the
+        pooled t (the default Bayes factor assumes equal variances). Returns a
+        :class:`~tinfer.BayesFactor` with the factor, Jeffreys' words for it, and the
+        posterior median and credible interval (at ``level``, default this result's) of the
+        standardised effect. Needs only t and the sample sizes, so results from
+        :func:`tinfer.from_summary` have it too.
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=(30, 30), mean=(10.0, 10.02), sd=(1.0, 1.0), pooled=True)
+        >>> b = r.bayes_factor()
+        >>> b.favours, round(b.bf01, 2)
+        ('no effect', 3.8)
+        """
+        from ..analyses.bayes import bayes_factor_of
+
+        return bayes_factor_of(self, scale=scale, side=side, level=level)
+
     # ------------------------------------------------------------------ planning
     def detectable_effect(self, power: float = 0.8):
         """Smallest standardised effect this design (its n, level and side) detects with ``power``.
