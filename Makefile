@@ -9,7 +9,7 @@ PIP    := $(PY) -m pip install -qq --disable-pip-version-check --progress-bar of
 RECORDS := records
 CHROMIUM := /usr/bin/chromium
 
-.PHONY: setup setup-demo demo test lint unit floors notebooks-check docs browser-deps lab notebooks bench readme-image clean
+.PHONY: setup setup-demo demo test lint unit floors tex-deps notebooks-check docs browser-deps lab notebooks bench readme-image clean
 
 # `make test` needs the whole developer tool chain; `make demo` only the package with its
 # display extra and a notebook runner (the "demo" extra), a much smaller environment.
@@ -30,6 +30,14 @@ $(STAMP): pyproject.toml | $(VENV)/bin/python
 	$(PIP) -e ".[dev]"
 	touch $(STAMP) $(DEMO)
 
+# Debian's pdflatex, so that the LaTeX tables are compiled, not only looked at.
+tex-deps:
+	@if ! command -v pdflatex >/dev/null; then \
+		echo "Installing Debian's texlive-latex-base for the LaTeX table check"; \
+		apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq \
+			--no-install-recommends texlive-latex-base >/dev/null; \
+	fi
+
 # Debian's Chromium for the browser checks (no browser download by any test tool).
 browser-deps:
 	@if [ ! -x $(CHROMIUM) ]; then \
@@ -45,7 +53,7 @@ lint: setup
 	$(PY) -m ruff check tinfer tests benchmarks notebooks/conftest.py
 	$(PY) -m ruff format --check tinfer tests benchmarks notebooks/conftest.py
 
-unit: setup browser-deps
+unit: setup browser-deps tex-deps
 	$(PY) -m pytest -q tests tinfer
 
 # The unit tests again on the oldest declared versions (.ci/floors.txt), in their own

@@ -36,8 +36,10 @@ from .results import (
     OneSidedTest,
     PairwiseResult,
     PlanResult,
+    ReportTable,
     TDistribution,
     TResult,
+    table,
     tdist,
 )
 from .results.provenance import VERSION as __version__
@@ -56,6 +58,7 @@ __all__ = [
     "PairwiseResult",
     "ParameterError",
     "PlanResult",
+    "ReportTable",
     "SmallSegmentWarning",
     "TDistribution",
     "TResult",
@@ -67,5 +70,6 @@ __all__ = [
     "offline_charts",
     "pairwise_from_summary",
     "plan",
+    "table",
     "tdist",
 ]

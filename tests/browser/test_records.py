@@ -59,3 +59,36 @@ def test_record_renders_offline_with_charts(path, browser, tmp_path):
     OUTPUT.mkdir(exist_ok=True)
     page.screenshot(path=str(OUTPUT / f"record_{path.stem}.png"))
     page.close()
+
+
+def test_records_index_links_and_manifest(browser, tmp_path):
+    """index.html lists every record with its title and headlines, its links open the records
+    offline, and manifest.json catches a record edited after the run."""
+    entries = []
+    for path in NOTEBOOKS[:3]:
+        nb = nbformat.read(path, as_version=4)
+        ipynb, html_file = tmp_path / path.name, tmp_path / (path.stem + ".html")
+        nbformat.write(nb, ipynb)
+        html_file.write_text(records.to_html(nb), encoding="utf-8")
+        entries.append(records.entry(nb, ipynb, html_file, "2026-01-01T00:00:00+00:00"))
+    records.write_index(tmp_path, entries)
+    assert records.verify(tmp_path) == []
+    page = browser.new_page(viewport={"width": 1000, "height": 900})
+    page.route("http*://**", lambda route: route.abort())
+    page.goto((tmp_path / "index.html").as_uri())
+    titles = page.locator("h2").all_inner_texts()
+    assert titles == [e["title"] for e in entries]
+    assert all(e["headlines"] for e in entries)  # every demo record shows some result
+    assert page.locator("li").count() == sum(len(e["headlines"]) for e in entries)
+    hrefs = [a.get_attribute("href") for a in page.locator("a").all()]
+    assert len(hrefs) == 1 + 3 * len(entries)  # the manifest, then title, record, notebook
+    for href in hrefs:
+        assert (tmp_path / href).exists(), href
+    page.locator("h2 a").first.click()
+    page.wait_for_load_state()
+    assert page.url.endswith(entries[0]["html"])
+    assert page.locator(".tinfer-card").count() >= 1
+    # an edit after the run is caught
+    edited = tmp_path / entries[0]["html"]
+    edited.write_text(edited.read_text(encoding="utf-8") + "<!-- edited -->", encoding="utf-8")
+    assert records.verify(tmp_path) == [f"{entries[0]['html']}: changed since the run"]

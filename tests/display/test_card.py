@@ -120,7 +120,7 @@ def test_footer_lists_only_settings_that_apply():
     assert "pooled" not in one.split('class="tinfer-provenance"')[1]
     eq = tinfer.from_summary(n=30, mean=0.2, sd=1.0, margin=0.8)
     foot = ttest.result_card(eq, chart=False).split('class="tinfer-provenance"')[1]
-    assert "band −0.80 to 0.80" in foot and "side" not in foot
+    assert "band −0.80 to 0.80" in foot and "<span>side" not in foot
 
 
 def test_text_fallback_holds_str(kilns):

@@ -146,13 +146,8 @@ def posterior_cdf(d, t, n_eff, df, scale=DEFAULT_SCALE, side: str = "two-sided")
     points = np.concatenate([d, [0.0]])  # P(delta <= 0 | g) for the one-sided priors
     cdf = np.empty((u.size, points.size))
     broad_a = np.abs(m) * _CHI_SD(k) > 1.0 / big_k
-    if broad_a.any():  # outer: Z by Gauss-Hermite; inner: the chi-square cdf of A
-        mm, kk = m[broad_a][:, None, None], big_k[broad_a][:, None, None]
-        x = points[None, None, :] - _HERMITE_Z[None, :, None] / kk
-        with np.errstate(divide="ignore", invalid="ignore"):
-            cv = special.chdtr(k, (x / mm) ** 2)
-        fa = np.where(mm > 0, np.where(x > 0, cv, 0.0), np.where(x < 0, 1.0 - cv, 1.0))
-        cdf[broad_a] = np.einsum("z,gzd->gd", _HERMITE_W, fa)
+    if broad_a.any():  # outer: Z; inner: the chi-square cdf of A
+        cdf[broad_a] = _outer_z(points, m[broad_a], big_k[broad_a], k)
     if (~broad_a).any():  # outer: V by a trapezoid sum in log V; inner: Phi for B
         root_v, omega = _chi_square_nodes(k)
         mm, kk = m[~broad_a][:, None, None], big_k[~broad_a][:, None, None]
@@ -168,8 +163,35 @@ def posterior_cdf(d, t, n_eff, df, scale=DEFAULT_SCALE, side: str = "two-sided")
     return w @ part / (w @ zero)
 
 
-_HERMITE_Z, _HERMITE_W = np.polynomial.hermite_e.hermegauss(48)
-_HERMITE_W = _HERMITE_W / _HERMITE_W.sum()
+_LEG_X, _LEG_W = np.polynomial.legendre.leggauss(64)
+
+
+def _outer_z(d: np.ndarray, m: np.ndarray, big_k: np.ndarray, k: float) -> np.ndarray:
+    """P(m sqrt(V) + Z / K <= d) for each node (rows) and d (columns), Z outer.
+
+    With c = K d and s the distance of Z from c on the side where A must make up the rest:
+    m > 0 gives the integral over s > 0 of phi(c - s) F(s), m < 0 gives
+    Phi(c) + the integral of phi(c + s) (1 - F(s)), with F(s) = P(chi2_k <= (s / (K m))^2).
+    F is smooth on s > 0 and behaves like s^k at 0, so Gauss-Legendre on the part of
+    s > 0 where phi is not negligible (its centre +-10) converges fast; there is no kink.
+    """
+    c = big_k[:, None] * d[None, :]
+    centre = np.where(m[:, None] > 0, c, -c)
+    lo = np.maximum(centre - 10.0, 0.0)
+    hi = np.maximum(centre + 10.0, 0.0)
+    half = (hi - lo) / 2.0
+    s = (lo + hi)[..., None] / 2.0 + half[..., None] * _LEG_X
+    scale = (big_k * np.abs(m))[:, None, None]
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        f = special.chdtr(k, (s / scale) ** 2)
+    up = m[:, None, None] > 0
+    integrand = np.where(up, _phi(c[..., None] - s) * f, _phi(c[..., None] + s) * (1.0 - f))
+    part = half * (integrand @ _LEG_W)
+    return np.where(m[:, None] > 0, part, special.ndtr(c) + part)
+
+
+def _phi(z):
+    return np.exp(-0.5 * z * z) / np.sqrt(2.0 * np.pi)
 
 
 def _CHI_SD(k: float) -> float:
@@ -183,8 +205,8 @@ def _chi_square_nodes(k: float) -> tuple[np.ndarray, np.ndarray]:
     summing to 1 (the density of y is analytic and falls off at both ends)."""
     sd = float(np.sqrt(special.polygamma(1, k / 2.0)))  # SD of log V
     peak = float(np.log(k))
-    left, right = max(10.0 * sd, 40.0 / (k / 2.0)), 10.0 * sd + 5.0
-    y = np.linspace(peak - min(left, 80.0), peak + right, 241)
+    left, right = max(10.0 * sd, min(40.0 / (k / 2.0), 80.0)), 12.0 * sd
+    y = np.linspace(peak - left, peak + right, 241)
     logp = k / 2.0 * y - np.exp(y) / 2.0  # up to a constant
     omega = np.exp(logp - logp.max())
     return np.exp(y / 2.0), omega / omega.sum()

@@ -198,7 +198,7 @@ def _scale_panel(b: BayesFactor, alt, pd):
         title="prior scale r",
         scale=alt.Scale(type="log", domain=[float(SCALES[0]), float(SCALES[-1])]),
     )
-    y = alt.Y("log10 BF:Q", title="log10 Bayes factor")
+    y = alt.Y("log10 BF:Q", title="log10 Bayes factor", axis=alt.Axis(titlePadding=14))
     line = alt.Chart(frame).mark_line(color=INK, strokeWidth=2).encode(x=x, y=y)
     point = alt.Chart(mark).mark_point(color=OBSERVED, size=70, filled=True).encode(x=x, y=y)
     return alt.layer(rules, line, point).properties(

@@ -17,7 +17,7 @@ import importlib.resources
 import re
 from collections.abc import Callable, Iterable, Sequence
 
-from ..results.provenance import VERSION
+from ..results.provenance import VERSION, versions
 from . import charts
 from .clean import visible
 
@@ -218,5 +218,8 @@ def card_start(kicker: str, headline: str, chip: str = "", chip_class: str = "")
 
 
 def version_item() -> tuple[str, str]:
-    """The first provenance item of every card: tinfer's version."""
-    return ("tinfer", esc(VERSION))
+    """The first provenance item of every card: tinfer's version, and the Python, numpy,
+    scipy and pandas that computed it (the last digits depend on scipy's)."""
+    v = versions()
+    rest = f"(Python {v['python']}, numpy {v['numpy']}, scipy {v['scipy']}, pandas {v['pandas']})"
+    return ("tinfer", esc(VERSION) + " " + f'<span class="tinfer-aside">{esc(rest)}</span>')

@@ -16,6 +16,7 @@ from .equivalence import Equivalence, OneSidedTest
 from .pairwise import PairwiseResult
 from .parts import Effect, GroupStats
 from .plan import PlanResult
+from .table import ReportTable, table
 from .tdist import TDistribution, TDistView, tdist
 from .ttest import TResult
 
@@ -30,8 +31,10 @@ __all__ = [
     "OneSidedTest",
     "PairwiseResult",
     "PlanResult",
+    "ReportTable",
     "TDistView",
     "TDistribution",
     "TResult",
+    "table",
     "tdist",
 ]

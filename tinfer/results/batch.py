@@ -327,6 +327,12 @@ class BatchResult(Card):
         lines.extend(f"note: {w}" for w in self.warnings)
         return "\n".join(lines)
 
+    def report_table(self):
+        """This result as rows of :func:`tinfer.table` (with its note line)."""
+        from .table import table
+
+        return table([self])
+
     def __repr__(self) -> str:
         return f"<BatchResult {self.design}, {self.n_rows} rows>\n{self}"
 

@@ -201,6 +201,12 @@ class BayesFactor(Card):
             )
         return "\n".join(lines)
 
+    def sentence(self, style: str = "plain") -> str:
+        """The factor in one sentence with its prior ("plain" or "compact")."""
+        from . import report
+
+        return report.bayes_sentence(self, report.check_style(style))
+
     def __repr__(self) -> str:
         return f"<BayesFactor {self.design}>\n{self}"
 

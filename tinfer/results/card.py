@@ -34,6 +34,34 @@ class Card:
 
         return html(self, chart=chart)
 
+    def report_table(self):
+        """This result as a :class:`~tinfer.results.table.ReportTable`: the table of
+        :func:`tinfer.table` for t results, batches and pairwise families; for other types
+        one row per number of ``to_dict()``."""
+        from . import report
+        from .table import ReportTable
+
+        numbers = self.to_dict() if hasattr(self, "to_dict") else {}
+        rows = tuple(
+            (str(k), report.value_text(v)) for k, v in numbers.items() if v not in (None, ())
+        )
+        return ReportTable(("quantity", "value"), rows, type(self).__name__, None)
+
+    def to_markdown(self) -> str:
+        """The result as a Markdown table with a note line (ASCII minus signs).
+
+        Examples
+        --------
+        >>> import tinfer
+        >>> print(tinfer.from_summary(n=10, mean=2.0, sd=1.0).to_markdown().splitlines()[0])
+        | comparison | estimate | CI | t | df | p | effect size | effect CI | n |
+        """
+        return self.report_table().to_markdown()
+
+    def to_latex(self) -> str:
+        """The result as a LaTeX ``tabular`` fragment with a note line (ASCII minus signs)."""
+        return self.report_table().to_latex()
+
     def _repr_mimebundle_(self, include=None, exclude=None) -> dict[str, str]:
         from ..display.render import mimebundle
 

@@ -272,6 +272,24 @@ class PairwiseResult(Card):
         lines.extend(f"note: {w}" for w in self.warnings)
         return "\n".join(lines)
 
+    def report_table(self):
+        """This result as rows of :func:`tinfer.table` (with its note line)."""
+        from .table import table
+
+        return table([self])
+
+    def sentence(self, style: str = "plain") -> str:
+        """The result in one sentence, ready to paste.
+
+        ``style="plain"`` (the default) puts the answer in words first; ``"compact"`` follows
+        the convention common in journals: statistic with its df in parentheses, p, effect
+        size with its interval.
+        """
+        from . import report
+
+        style = report.check_style(style)
+        return report.pairwise_sentence(self, style)
+
     def __repr__(self) -> str:
         return f"<PairwiseResult {self.method}, {self.n_pairs} pairs>\n{self}"
 

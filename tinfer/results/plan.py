@@ -132,8 +132,13 @@ class PlanResult(Card):
         return asdict(self)
 
     # ------------------------------------------------------------------ words
-    def sentence(self) -> str:
-        """The answer in one plain sentence (for a grid: the range it covers)."""
+    def sentence(self, style: str = "plain") -> str:
+        """The answer in one plain sentence (for a grid: the range it covers); ``"compact"``
+        gives n, power, effect and alpha in the short form."""
+        if style != "plain":
+            from . import report
+
+            return report.plan_sentence(self, report.check_style(style))
         if self.is_grid:
             return grid_sentence(self)
         return single_sentence(self)

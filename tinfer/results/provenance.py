@@ -12,6 +12,34 @@ import numpy as np
 VERSION = "0.1.0"
 
 
+def versions() -> dict[str, str]:
+    """The versions that compute a result: Python, numpy, scipy, pandas and tinfer.
+
+    tinfer's last digits depend on scipy's, so a record without them cannot be re-checked.
+
+    >>> sorted(versions())
+    ['numpy', 'pandas', 'python', 'scipy', 'tinfer']
+    """
+    import platform
+    from importlib import metadata
+
+    out = {"tinfer": VERSION, "python": platform.python_version()}
+    for name in ("numpy", "scipy", "pandas"):
+        try:
+            out[name] = metadata.version(name)
+        except metadata.PackageNotFoundError:  # pragma: no cover - installed with tinfer
+            out[name] = "not installed"
+    return out
+
+
+def versions_text() -> str:
+    """The versions as one short line: "tinfer 0.1.0, Python 3.11.7, numpy 2.4.6, ..."."""
+    v = versions()
+    names = {"tinfer": "tinfer", "python": "Python", "numpy": "numpy", "scipy": "scipy"}
+    names["pandas"] = "pandas"
+    return ", ".join(f"{names[k]} {v[k]}" for k in ("tinfer", "python", "numpy", "scipy", "pandas"))
+
+
 def now_iso() -> str:
     """The current UTC time, ISO 8601 to the second."""
     return _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds")

@@ -343,6 +343,24 @@ class TResult(Card):
     def __str__(self) -> str:
         return "\n".join(sentences.text_lines(self))
 
+    def report_table(self):
+        """This result as rows of :func:`tinfer.table` (with its note line)."""
+        from .table import table
+
+        return table([self])
+
+    def sentence(self, style: str = "plain") -> str:
+        """The result in one sentence, ready to paste.
+
+        ``style="plain"`` (the default) puts the answer in words first; ``"compact"`` follows
+        the convention common in journals: statistic with its df in parentheses, p, effect
+        size with its interval.
+        """
+        from . import report
+
+        style = report.check_style(style)
+        return report.ttest_sentence(self, style)
+
     def __repr__(self) -> str:
         return f"<TResult {self.design}>\n{self}"
 
