@@ -21,7 +21,7 @@ def card(obj: Any, chart: bool = True) -> str:
 
 def _register_cards() -> None:
     """Import the display modules, each of which registers the card of its result type."""
-    from . import batch, bayes, bootstrap, diagnostics, pairwise, plan, tdist, ttest  # noqa: F401
+    from . import batch, bayes, bootstrap, diagnostics, lift, pairwise, plan, tdist, ttest  # noqa: F401
 
 
 def html(obj: Any, chart: bool = True) -> str:

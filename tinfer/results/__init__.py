@@ -13,6 +13,7 @@ from .bayes import BayesFactor
 from .bootstrap import BootstrapCheck
 from .diagnostics import Diagnostics
 from .equivalence import Equivalence, OneSidedTest
+from .lift import RelativeLift
 from .pairwise import PairwiseResult
 from .parts import Effect, GroupStats
 from .plan import PlanResult
@@ -31,6 +32,7 @@ __all__ = [
     "OneSidedTest",
     "PairwiseResult",
     "PlanResult",
+    "RelativeLift",
     "ReportTable",
     "TDistView",
     "TDistribution",

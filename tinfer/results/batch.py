@@ -252,6 +252,18 @@ class BatchResult(Card):
         frame["bf_side"] = side
         return frame
 
+    def relative_lift(self, method: str = "fieller") -> pd.DataFrame:
+        """:meth:`to_frame` with the relative lift of every two-sample row, vectorised:
+        ``lift`` (first mean over second, minus one), ``lift_low``, ``lift_high`` (Fieller's
+        interval, or ``method="log"``) and ``lift_bounded`` (False where the second mean is
+        not clearly away from zero: the limits are then NaN, not a number to trust)."""
+        from ..analyses.lift import batch_lift
+
+        frame = self.to_frame()
+        for name, values in batch_lift(self, method).items():
+            frame[name] = values
+        return frame
+
     def top(self, k: int = 10) -> pd.DataFrame:
         """The ``k`` rows with the smallest p-values (testable rows only)."""
         frame = self.to_frame()

@@ -293,6 +293,21 @@ class TResult(Card):
 
         return bayes_factor_of(self, scale=scale, side=side, level=level)
 
+    def relative_lift(self, method: str = "fieller", level=None):
+        """The first mean relative to the second (or the mean relative to ``null``), in percent.
+
+        Fieller's interval ("unbounded" when the second mean is not clearly away from zero) or
+        ``method="log"`` (delta method on the log ratio); see :class:`~tinfer.RelativeLift`.
+
+        >>> import tinfer
+        >>> r = tinfer.from_summary(n=(400, 400), mean=(10.4, 10.0), sd=(2.0, 2.0))
+        >>> print(r.relative_lift().headline)
+        The mean value of first relative to second: +4% (95% CI +1.21% to +6.87%).
+        """
+        from ..analyses.lift import relative_lift_of
+
+        return relative_lift_of(self, method=method, level=level)
+
     # ------------------------------------------------------------------ planning
     def detectable_effect(self, power: float = 0.8):
         """Smallest standardised effect this design (its n, level and side) detects with ``power``.
