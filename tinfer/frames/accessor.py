@@ -19,6 +19,7 @@ from ..results.pairwise import PairwiseResult
 from ..results.ttest import TResult
 from . import ttest
 from .batch import compare_frame
+from .cluster import per_unit_means
 from .columns import one_column
 from .pairwise import pairwise_frame
 
@@ -103,6 +104,7 @@ class TinferFrameAccessor:
         worse: str | None = None,
         superior: bool = False,
         trim: float = 0.0,
+        cluster: Hashable | None = None,
     ) -> TResult:
         """Compare the means of two independent groups (Welch by default).
 
@@ -125,6 +127,10 @@ class TinferFrameAccessor:
         {units}
         {margin_options}
         {trim}
+        cluster : column label, optional
+            The unit of randomisation (a visitor, a batch, a plot) when a unit has several
+            rows: each unit's rows are averaged first and the test runs on one mean per unit.
+            Units found in both groups are left out and counted in the result's notes.
 
         Returns
         -------
@@ -142,6 +148,8 @@ class TinferFrameAccessor:
         opts = dict(null=null, side=side, level=level, pooled=pooled, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
         if by is None:
+            if cluster is not None:
+                raise DataError("cluster= works on long data: give by= (the group column) too.")
             if not _is_pair(column):
                 raise DataError(
                     "two_sample needs either by= (a grouping column) or a pair of columns, "
@@ -150,9 +158,14 @@ class TinferFrameAccessor:
             a, b = (one_column(self._obj, c) for c in column)
             variable = f"{column[0]} vs {column[1]}"
             return ttest.two_sample(a, b, variable, func="two_sample", **opts)
-        a, b, no_key = ttest.two_groups(self._obj, column, by, groups)
+        frame, notes = self._obj, ()
+        if cluster is not None:
+            frame, notes = per_unit_means(self._obj, column, by, cluster)
+        a, b, no_key = ttest.two_groups(frame, column, by, groups)
         if no_key:
-            opts["warnings"] = (f"{no_key} row(s) with a missing {by!r} value were not used.",)
+            notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)
+        if notes:
+            opts["warnings"] = notes
         return ttest.two_sample(a, b, str(column), func="two_sample", **opts)
 
     @fill_params(

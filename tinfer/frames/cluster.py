@@ -1,0 +1,67 @@
+"""One value per unit of randomisation: ``two_sample(..., cluster="user_id")``.
+
+Visitors are randomised but orders or sessions are the rows; rows of one visitor are not
+independent, so testing rows makes intervals too narrow. Each unit's rows are averaged first
+and the test runs on the per-unit means. A unit found in both groups is a data error (a unit
+is randomised once): such units are left out, and the result says how many.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Hashable
+
+import numpy as np
+import pandas as pd
+
+from ..errors import DataError
+from .columns import column, to_float
+
+
+def per_unit_means(
+    df: pd.DataFrame, value: Hashable, by: Hashable, cluster: Hashable
+) -> tuple[pd.DataFrame, tuple[str, ...]]:
+    """A frame with one row per unit (its mean of ``value`` and its group) and the notes.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> rows = pd.DataFrame({"u": [1, 1, 2, 3, 3, 3], "arm": ["a", "a", "a", "b", "b", "b"],
+    ...                      "spend": [10.0, 20.0, 5.0, 1.0, 2.0, 3.0]})
+    >>> units, notes = per_unit_means(rows, "spend", "arm", "u")
+    >>> units["spend"].tolist(), notes[0].split(":")[0]
+    ([15.0, 5.0, 2.0], "Rows averaged per 'u' unit")
+    """
+    if cluster in (value, by):
+        raise DataError(f"cluster={cluster!r} must be a column other than the value and by=.")
+    vals = to_float(column(df, value), f"Column {value!r}")
+    if np.isinf(vals).any():
+        raise DataError(
+            f"Column {value!r} holds infinite value(s); replace them with NaN or fix them."
+        )
+    frame = pd.DataFrame({"v": vals, "u": column(df, cluster).to_numpy(), "g": column(df, by)})
+    no_unit = int(frame["u"].isna().sum())
+    frame = frame.dropna(subset=["u", "g"])
+    arms = frame.groupby("u", sort=False, observed=True)["g"].nunique()
+    both = arms.index[arms > 1]
+    if len(both):
+        frame = frame[~frame["u"].isin(both)]
+    rows = int(frame["v"].notna().sum())
+    means = (
+        frame.dropna(subset=["v"])
+        .groupby(["u", "g"], sort=False, observed=True)["v"]
+        .mean()
+        .reset_index()
+    )
+    notes = [
+        f"Rows averaged per {cluster!r} unit: {rows:,} rows became {len(means):,} units, and "
+        "the test treats units, not rows, as independent."
+    ]
+    if len(both):
+        notes.append(
+            f"{len(both):,} unit(s) of {cluster!r} appear in both groups (a data error: a unit "
+            "is randomised once); their rows were left out."
+        )
+    if no_unit:
+        notes.append(f"{no_unit:,} row(s) with a missing {cluster!r} were not used.")
+    out = pd.DataFrame({value: means["v"].to_numpy(), by: means["g"].to_numpy()})
+    return out, tuple(notes)
