@@ -17,9 +17,8 @@ from ..errors import DataError
 from ..results.batch import BatchResult
 from ..results.pairwise import PairwiseResult
 from ..results.ttest import TResult
-from . import ttest
+from . import cuped, ttest
 from .batch import compare_frame
-from .cluster import per_unit_means
 from .columns import one_column
 from .pairwise import pairwise_frame
 
@@ -105,6 +104,7 @@ class TinferFrameAccessor:
         superior: bool = False,
         trim: float = 0.0,
         cluster: Hashable | None = None,
+        covariate: Hashable | None = None,
     ) -> TResult:
         """Compare the means of two independent groups (Welch by default).
 
@@ -131,6 +131,11 @@ class TinferFrameAccessor:
             The unit of randomisation (a visitor, a batch, a plot) when a unit has several
             rows: each unit's rows are averaged first and the test runs on one mean per unit.
             Units found in both groups are left out and counted in the result's notes.
+        covariate : column label, optional
+            Each unit's pre-period value of the metric: the CUPED adjustment (Deng et al.
+            2013) subtracts theta (x - mean x) before the test, with theta the pooled
+            within-group slope; the notes say how much variance it removed. A missing
+            covariate where the value is present is an error, never silently dropped.
 
         Returns
         -------
@@ -148,8 +153,10 @@ class TinferFrameAccessor:
         opts = dict(null=null, side=side, level=level, pooled=pooled, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
         if by is None:
-            if cluster is not None:
-                raise DataError("cluster= works on long data: give by= (the group column) too.")
+            if cluster is not None or covariate is not None:
+                raise DataError(
+                    "cluster= and covariate= work on long data: give by= (the group column) too."
+                )
             if not _is_pair(column):
                 raise DataError(
                     "two_sample needs either by= (a grouping column) or a pair of columns, "
@@ -158,9 +165,7 @@ class TinferFrameAccessor:
             a, b = (one_column(self._obj, c) for c in column)
             variable = f"{column[0]} vs {column[1]}"
             return ttest.two_sample(a, b, variable, func="two_sample", **opts)
-        frame, notes = self._obj, ()
-        if cluster is not None:
-            frame, notes = per_unit_means(self._obj, column, by, cluster)
+        frame, notes = cuped.prepare(self._obj, column, by, groups, cluster, covariate)
         a, b, no_key = ttest.two_groups(frame, column, by, groups)
         if no_key:
             notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)

@@ -18,7 +18,7 @@ from .columns import column, to_float
 
 
 def per_unit_means(
-    df: pd.DataFrame, value: Hashable, by: Hashable, cluster: Hashable
+    df: pd.DataFrame, value: Hashable, by: Hashable, cluster: Hashable, extra: tuple = ()
 ) -> tuple[pd.DataFrame, tuple[str, ...]]:
     """A frame with one row per unit (its mean of ``value`` and its group) and the notes.
 
@@ -39,6 +39,8 @@ def per_unit_means(
             f"Column {value!r} holds infinite value(s); replace them with NaN or fix them."
         )
     frame = pd.DataFrame({"v": vals, "u": column(df, cluster).to_numpy(), "g": column(df, by)})
+    for i, name in enumerate(extra):
+        frame[f"x{i}"] = to_float(column(df, name), f"Column {name!r}")
     no_unit = int(frame["u"].isna().sum())
     frame = frame.dropna(subset=["u", "g"])
     arms = frame.groupby("u", sort=False, observed=True)["g"].nunique()
@@ -46,9 +48,10 @@ def per_unit_means(
     if len(both):
         frame = frame[~frame["u"].isin(both)]
     rows = int(frame["v"].notna().sum())
+    cols = ["v", *(f"x{i}" for i in range(len(extra)))]
     means = (
         frame.dropna(subset=["v"])
-        .groupby(["u", "g"], sort=False, observed=True)["v"]
+        .groupby(["u", "g"], sort=False, observed=True)[cols]
         .mean()
         .reset_index()
     )
@@ -64,4 +67,6 @@ def per_unit_means(
     if no_unit:
         notes.append(f"{no_unit:,} row(s) with a missing {cluster!r} were not used.")
     out = pd.DataFrame({value: means["v"].to_numpy(), by: means["g"].to_numpy()})
+    for i, name in enumerate(extra):
+        out[name] = means[f"x{i}"].to_numpy()
     return out, tuple(notes)
