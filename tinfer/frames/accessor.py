@@ -171,7 +171,8 @@ class TinferFrameAccessor:
             notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)
         if notes:
             opts["warnings"] = notes
-        return ttest.two_sample(a, b, str(column), func="two_sample", **opts)
+        label = str(column) if covariate is None else f"{column} (adjusted for {covariate})"
+        return ttest.two_sample(a, b, label, func="two_sample", **opts)
 
     @fill_params(
         side=_PAIR_SIDE,
