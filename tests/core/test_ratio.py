@@ -94,7 +94,7 @@ class TestApi:
         _, lo, hi, _ = ratio.fieller(10.4, 10.0, va, vb, 0.0, df)
         assert lift.lift == pytest.approx(0.04, rel=1e-12)
         assert lift.ci == pytest.approx((lo - 1, hi - 1), rel=1e-12)
-        assert "+4%" in lift.headline and lift.to_html().startswith('<div class="tinfer-card">')
+        assert "+4.0%" in lift.headline and lift.to_html().startswith('<div class="tinfer-card">')
 
     def test_one_sample_is_the_interval_over_null(self):
         r = tinfer.from_summary(n=20, mean=10.4, sd=2.0, null=10.0)

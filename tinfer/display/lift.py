@@ -22,14 +22,15 @@ def lift_card(r: RelativeLift, chart: bool = True) -> str:
     True
     """
     lv = fmt_level(r.level)
+    d = r.decimals
     interval = (
-        f"{pct(r.ci[0])} to {pct(r.ci[1])}"
+        f"{pct(r.ci[0], d)} to {pct(r.ci[1], d)}".replace("unbounded", "no limit")
         if r.bounded
         else "unbounded (the reference mean is not clearly away from zero)"
     )
     figures = html.figures_table(
         [
-            ("Relative lift", html.num(pct(r.lift), strong=True)),
+            ("Relative lift", html.num(pct(r.lift, d), strong=True)),
             (f"{lv} interval", html.num(interval)),
             ("Ratio of means", html.num(f"{r.ratio:.4g}")),
             ("Method", html.num(METHOD_NAMES[r.method]) + html.aside(f"(df {fmt_df(r.df)})")),

@@ -20,17 +20,30 @@ METHOD_NAMES = {
 }
 
 
-def pct(x: float, digits: int = 3) -> str:
-    """A lift as a signed percentage with ``digits`` significant digits (real minus sign).
+def pct(x: float, decimals: int = 1) -> str:
+    """A lift as a signed percentage with fixed ``decimals`` (real minus sign).
 
-    >>> pct(0.0321), pct(-0.105), pct(float("inf"))
-    ('+3.21%', '−10.5%', 'unbounded')
+    >>> pct(0.0321), pct(-0.105, 2), pct(float("inf"))
+    ('+3.2%', '−10.50%', 'unbounded')
     """
     if not math.isfinite(x):
         return "unbounded"
-    v = 100.0 * x
-    text = f"{v:+.{digits}g}%" if abs(v) >= 1e-3 else "0%"
+    text = f"{100.0 * x:+.{decimals}f}%"
+    if text.strip("+-%0.") == "":
+        text = f"{0.0:.{decimals}f}%"
     return text.replace("-", "−")
+
+
+def pct_decimals(low: float, high: float) -> int:
+    """Decimals that show an interval's width (in percent) to two significant digits.
+
+    >>> pct_decimals(0.0121, 0.0687), pct_decimals(-0.3, 0.9), pct_decimals(0.0, 0.0004)
+    (1, 0, 3)
+    """
+    width = 100.0 * (high - low)
+    if not (math.isfinite(width) and width > 0):
+        return 1
+    return int(min(max(1 - math.floor(math.log10(width)), 0), 6))
 
 
 @dataclass(frozen=True, eq=False)
@@ -81,8 +94,24 @@ class RelativeLift(Card):
                 f"The {what}: {pct(self.lift)}; the {lv} interval is unbounded, because the "
                 "reference mean is not clearly different from zero (Fieller)."
             )
-        lo, hi = (pct(v) for v in self.ci)
-        return f"The {what}: {pct(self.lift)} ({lv} CI {lo} to {hi})."
+        d = self.decimals
+        lo, hi = self.ci
+        if math.isinf(hi):
+            bound = f"{lv} lower bound {pct(lo, d)}"
+        elif math.isinf(lo):
+            bound = f"{lv} upper bound {pct(hi, d)}"
+        else:
+            bound = f"{lv} CI {pct(lo, d)} to {pct(hi, d)}"
+        return f"The {what}: {pct(self.lift, d)} ({bound})."
+
+    @property
+    def decimals(self) -> int:
+        """Decimals of the percentages: the interval's width to two significant digits."""
+        finite = [v for v in self.ci if math.isfinite(v)]
+        if len(finite) == 2:
+            return pct_decimals(*finite)
+        half = abs(self.lift - finite[0]) if finite else 0.0
+        return pct_decimals(0.0, half)
 
     def to_dict(self) -> dict[str, Any]:
         return {

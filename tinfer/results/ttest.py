@@ -302,7 +302,7 @@ class TResult(Card):
         >>> import tinfer
         >>> r = tinfer.from_summary(n=(400, 400), mean=(10.4, 10.0), sd=(2.0, 2.0))
         >>> print(r.relative_lift().headline)
-        The mean value of first relative to second: +4% (95% CI +1.21% to +6.87%).
+        The mean value of first relative to second: +4.0% (95% CI +1.2% to +6.9%).
         """
         from ..analyses.lift import relative_lift_of
 
