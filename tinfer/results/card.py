@@ -6,6 +6,28 @@ The card is built by :mod:`tinfer.display` on demand, inside these methods.
 from __future__ import annotations
 
 
+class Reported:
+    """Mixin for results that are tables of tests (one t result, a pairwise family): their
+    report table is :func:`tinfer.table` of themselves, and they write their own sentence."""
+
+    def report_table(self):
+        """This result as rows of :func:`tinfer.table` (with its note line)."""
+        from .table import table
+
+        return table([self])
+
+    def sentence(self, style: str = "plain") -> str:
+        """The result in one sentence, ready to paste.
+
+        ``style="plain"`` (the default) puts the answer in words first; ``"compact"`` follows
+        the convention common in journals: statistic with its df in parentheses, p, effect
+        size with its interval.
+        """
+        from . import report
+
+        return report.sentence_of(self, report.check_style(style))
+
+
 class Card:
     """Mixin: ``to_html()`` and ``_repr_mimebundle_`` for a result type.
 

@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..core.pairwise import SHORT
-from .card import Card
+from .card import Card, Reported
 from .format import column_decimals, fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p
 from .parts import GroupStats
 
@@ -50,7 +50,7 @@ def interval_text(low: float, high: float, decimals: int) -> str:
 
 
 @dataclass(frozen=True, eq=False)
-class PairwiseResult(Card):
+class PairwiseResult(Reported, Card):
     """Every pair of levels (or every level against a control) compared as one family.
 
     Pair ``i`` estimates the mean of ``levels[first[i]]`` minus that of
@@ -271,24 +271,6 @@ class PairwiseResult(Card):
         )
         lines.extend(f"note: {w}" for w in self.warnings)
         return "\n".join(lines)
-
-    def report_table(self):
-        """This result as rows of :func:`tinfer.table` (with its note line)."""
-        from .table import table
-
-        return table([self])
-
-    def sentence(self, style: str = "plain") -> str:
-        """The result in one sentence, ready to paste.
-
-        ``style="plain"`` (the default) puts the answer in words first; ``"compact"`` follows
-        the convention common in journals: statistic with its df in parentheses, p, effect
-        size with its interval.
-        """
-        from . import report
-
-        style = report.check_style(style)
-        return report.pairwise_sentence(self, style)
 
     def __repr__(self) -> str:
         return f"<PairwiseResult {self.method}, {self.n_pairs} pairs>\n{self}"

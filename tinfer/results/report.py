@@ -88,6 +88,15 @@ def equivalence_clause(r, style: str) -> str:
     return f"TOST {', '.join(tests)}, p = {fmt_p(eq.p, eq.log_p)}, {lv} CI {_ci(lo, hi, r.fmt)}"
 
 
+def sentence_of(r, style: str) -> str:
+    """The sentence of a t result or a pairwise family."""
+    from .pairwise import PairwiseResult
+
+    return (
+        pairwise_sentence(r, style) if isinstance(r, PairwiseResult) else ttest_sentence(r, style)
+    )
+
+
 # --------------------------------------------------------------------------- other types
 def pairwise_sentence(r, style: str, most: int = 3) -> str:
     """The headline of a pairwise family and its largest differing pairs (at most ``most``)."""

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..core.summary import Summary
 from . import provenance, sentences
-from .card import Card
+from .card import Card, Reported
 from .equivalence import Equivalence
 from .format import decimals_for, fmt_num
 from .parts import Effect, GroupStats
@@ -25,7 +25,7 @@ DESIGNS = ("one-sample", "paired", "two-sample")
 
 
 @dataclass(frozen=True, eq=False)
-class TResult(Card):
+class TResult(Reported, Card):
     """The full answer of one t procedure.
 
     Attributes
@@ -357,24 +357,6 @@ class TResult(Card):
     # ------------------------------------------------------------------ text
     def __str__(self) -> str:
         return "\n".join(sentences.text_lines(self))
-
-    def report_table(self):
-        """This result as rows of :func:`tinfer.table` (with its note line)."""
-        from .table import table
-
-        return table([self])
-
-    def sentence(self, style: str = "plain") -> str:
-        """The result in one sentence, ready to paste.
-
-        ``style="plain"`` (the default) puts the answer in words first; ``"compact"`` follows
-        the convention common in journals: statistic with its df in parentheses, p, effect
-        size with its interval.
-        """
-        from . import report
-
-        style = report.check_style(style)
-        return report.ttest_sentence(self, style)
 
     def __repr__(self) -> str:
         return f"<TResult {self.design}>\n{self}"
