@@ -15,6 +15,7 @@ import pytest
 from scipy import stats
 
 import tinfer
+from tinfer.core import distribution as dist
 from tinfer.core import ratio
 
 
@@ -30,13 +31,21 @@ def _set_limits(a, b, va, vb, q):
     [(10.0, 8.0, 0.25, 0.16, 40.0), (5.2, 5.0, 0.01, 0.02, 120.0), (-3.0, 4.0, 0.3, 0.2, 15.0)],
 )
 def test_fieller_equals_the_scanned_set_and_numpy_roots(a, b, va, vb, df):
-    q = stats.t.ppf(0.975, df)
+    # the critical value is tinfer's (checked against mpmath in test_last_digits.py): scipy's
+    # t.ppf before 1.17 is 2e-11 off, which would show in these 1e-14 residuals
+    q = float(dist.critical(df, 0.95, "two-sided"))
     r, lo, hi, ok = ratio.fieller(a, b, va, vb, 0.0, df)
     assert ok and r == a / b
     s_lo, s_hi = _set_limits(a, b, va, vb, q)
     assert abs(lo - s_lo) < 3e-6 and abs(hi - s_hi) < 3e-6  # the scan's step is 2e-6
-    roots = np.sort(np.roots([b * b - q * q * vb, -2 * a * b, a * a - q * q * va]).real)
-    np.testing.assert_allclose([lo, hi], roots, rtol=1e-12)
+    coef = [b * b - q * q * vb, -2 * a * b, a * a - q * q * va]
+    roots = np.sort(np.roots(coef).real)
+    # numpy.roots goes through eigenvalues: about 1e-12 (numpy 1.26), so 1e-10 here, and the
+    # quadratic's residual at each limit, relative to the size of its terms, to 1e-14
+    np.testing.assert_allclose([lo, hi], roots, rtol=1e-10)
+    for rho in (lo, hi):
+        terms = np.abs([coef[0] * rho * rho, coef[1] * rho, coef[2]])
+        assert abs(np.polyval(coef, rho)) <= 1e-14 * terms.sum()
 
 
 def test_fieller_with_covariance():

@@ -49,7 +49,8 @@ def fieller(a, b, va, vb, cov, df, level=0.95, side: str = "two-sided"):
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = a / b
         root = np.sqrt(np.maximum(qb * qb - qa * qc, 0.0))
-        r1, r2 = (qb - root) / qa, (qb + root) / qa
+        s = qb + np.copysign(root, qb)  # no cancellation: the other root is qc / s
+        r1, r2 = s / qa, qc / s
     bounded = qa > 0
     lo = np.where(bounded, np.minimum(r1, r2), np.nan)
     hi = np.where(bounded, np.maximum(r1, r2), np.nan)
