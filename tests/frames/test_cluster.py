@@ -69,3 +69,12 @@ def test_cluster_needs_long_data():
         orders.tinfer.two_sample(("basket", "visitor"), cluster="visitor")
     with pytest.raises(tinfer.DataError, match="other than"):
         orders.tinfer.two_sample("basket", by="checkout", cluster="checkout")
+
+
+def test_missing_values_are_dropped_counted_and_the_frame_kept():
+    orders = _orders()
+    orders.loc[[0, 5, 9], "basket"] = np.nan
+    before = orders.copy()
+    r = orders.tinfer.two_sample("basket", by="checkout", groups=("new", "old"), cluster="visitor")
+    assert any("3 row(s) with a missing 'basket' were not used." in w for w in r.warnings)
+    pd.testing.assert_frame_equal(orders, before)

@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..checks import check_level, check_side, fail, real
-from ..core import bayes
+from ..core import bayes, procedures
 from ..errors import ParameterError
 from ..results import provenance
 from ..results.bayes import BayesFactor
@@ -43,18 +43,10 @@ def bayes_inputs(result: TResult) -> tuple[float, float, float, bool]:
         return float(result.t), n, n - 1.0, False
     a, b = result.summaries
     na, nb = float(a.n), float(b.n)
-    df = na + nb - 2.0
-    if result.pooled:
-        return float(result.t), na * nb / (na + nb), df, False
-    sp = np.sqrt((float(a.ssd) + float(b.ssd)) / df)
-    diff = (float(a.mean) - float(b.mean)) + (_lo(a) - _lo(b)) - result.null
-    with np.errstate(divide="ignore", invalid="ignore"):
-        t = diff / (sp * np.sqrt(1.0 / na + 1.0 / nb))
-    return float(t), na * nb / (na + nb), df, True
-
-
-def _lo(s) -> float:
-    return 0.0 if s.mean_lo is None else float(s.mean_lo)
+    t = result.t
+    if not result.pooled:  # the default Bayes factor assumes equal variances
+        t = procedures.two_sample(a, b, null=result.null, pooled=True, effect_ci=False).t
+    return float(t), na * nb / (na + nb), na + nb - 2.0, not result.pooled
 
 
 def bayes_factor_of(
@@ -129,12 +121,16 @@ def batch_log_bf(batch, scale: Any, side: Any) -> np.ndarray:
     na = np.asarray(batch.n_a, float)
     if batch.design == "two-sample":
         nb = np.asarray(batch.n_b, float)
-        df = na + nb - 2.0
-        with np.errstate(divide="ignore", invalid="ignore"):
-            sp = np.sqrt((batch.ssd_a + batch.ssd_b) / df)
-            diff = (batch.mean_a - batch.mean_b) + (batch.mean_lo_a - batch.mean_lo_b)
-            t = (diff - batch.null) / (sp * np.sqrt(1.0 / na + 1.0 / nb))
-            n_eff = na * nb / (na + nb)
+        arms = [
+            (getattr(batch, f"n_{k}"), getattr(batch, f"mean_{k}"), getattr(batch, f"mean_lo_{k}"),
+             getattr(batch, f"ssd_{k}"))
+            for k in "ab"
+        ]  # fmt: skip
+        with np.errstate(all="ignore"):
+            pooled = procedures.rows(
+                "two-sample", *arms, batch.null, 0.95, "two-sided", True, False
+            )
+        t, n_eff, df = np.asarray(pooled.t, float), na * nb / (na + nb), na + nb - 2.0
     else:
         t, n_eff, df = np.asarray(batch.t, float), na, na - 1.0
     ok = np.asarray(batch.testable, bool) & np.isfinite(t) & (df > 0)

@@ -10,8 +10,8 @@ from __future__ import annotations
 import numpy as np
 
 from ..core import bayes
-from ..results.bayes import BayesFactor, fmt_bf
-from ..results.format import fmt_df, fmt_level, fmt_sig
+from ..results.bayes import BayesFactor
+from ..results.format import fmt_bf, fmt_df, fmt_level, fmt_sig
 from . import html
 from .charts import CURVE, INK, MUTED, OBSERVED, REFERENCE, altair
 from .diagnostics import rounded

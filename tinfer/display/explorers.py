@@ -102,10 +102,12 @@ class Explorer(w.VBox):
         self._show(self.options())
 
     def options(self) -> dict[str, Any]:  # pragma: no cover - every explorer overrides it
-        raise NotImplementedError
+        """The current settings of the controls (each explorer defines its own)."""
+        raise NotImplementedError(f"{type(self).__name__} must define options()")
 
     def _render(self, options: dict[str, Any]):  # pragma: no cover - overridden
-        raise NotImplementedError
+        """The (result, card) for ``options`` (each explorer defines its own)."""
+        raise NotImplementedError(f"{type(self).__name__} must define _render()")
 
 
 class ResultExplorer(Explorer):

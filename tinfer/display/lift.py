@@ -4,8 +4,8 @@ already draws the difference."""
 
 from __future__ import annotations
 
-from ..results.format import fmt_df, fmt_level
-from ..results.lift import METHOD_NAMES, RelativeLift, pct
+from ..results.format import fmt_df, fmt_level, pct
+from ..results.lift import METHOD_NAMES, RelativeLift
 from . import html
 from .render import card
 

@@ -66,6 +66,9 @@ def per_unit_means(
         )
     if no_unit:
         notes.append(f"{no_unit:,} row(s) with a missing {cluster!r} were not used.")
+    no_value = int(frame["v"].isna().sum())
+    if no_value:
+        notes.append(f"{no_value:,} row(s) with a missing {value!r} were not used.")
     out = pd.DataFrame({value: means["v"].to_numpy(), by: means["g"].to_numpy()})
     for i, name in enumerate(extra):
         out[name] = means[f"x{i}"].to_numpy()

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from .card import Card
-from .format import fmt_df, fmt_level, fmt_sig
+from .format import fmt_bf, fmt_df, fmt_level, fmt_sig
 
 #: Jeffreys (1961, Theory of Probability, 3rd ed., Appendix B; grades from memory): the
 #: lower edge of each grade on the Bayes factor, and his words for it.
@@ -41,22 +41,6 @@ def jeffreys_grade(log_bf: float) -> str:
         if log_bf >= math.log(edge):
             words = grade
     return words
-
-
-def fmt_bf(log_bf: float) -> str:
-    """A Bayes factor from its natural log: 3 significant digits, powers of ten when huge.
-
-    >>> fmt_bf(math.log(12.345)), fmt_bf(1000.0), fmt_bf(-1000.0)
-    ('12.3', '1.97 × 10^434', '5.08 × 10^-435')
-    """
-    if abs(log_bf) < math.log(1e6):
-        return fmt_sig(math.exp(log_bf), 3)
-    log10 = log_bf / math.log(10.0)
-    exponent = math.floor(log10)
-    mantissa = 10 ** (log10 - exponent)
-    if round(mantissa, 2) >= 10.0:
-        mantissa, exponent = mantissa / 10, exponent + 1
-    return f"{mantissa:.2f} × 10^{exponent}"
 
 
 @dataclass(frozen=True, eq=False)

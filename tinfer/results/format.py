@@ -148,3 +148,45 @@ def fmt_sig(x: float, digits: int = 3) -> str:
     if not math.isfinite(x):
         return "n/a"
     return f"{x:.{digits}g}".replace("-", "−")
+
+
+def fmt_bf(log_bf: float) -> str:
+    """A Bayes factor from its natural log: 3 significant digits, powers of ten when huge.
+
+    >>> fmt_bf(math.log(12.345)), fmt_bf(1000.0), fmt_bf(-1000.0)
+    ('12.3', '1.97 × 10^434', '5.08 × 10^-435')
+    """
+    if abs(log_bf) < math.log(1e6):
+        return fmt_sig(math.exp(log_bf), 3)
+    log10 = log_bf / math.log(10.0)
+    exponent = math.floor(log10)
+    mantissa = 10 ** (log10 - exponent)
+    if round(mantissa, 2) >= 10.0:
+        mantissa, exponent = mantissa / 10, exponent + 1
+    return f"{mantissa:.2f} × 10^{exponent}"
+
+
+def pct(x: float, decimals: int = 1) -> str:
+    """A lift as a signed percentage with fixed ``decimals`` (real minus sign).
+
+    >>> pct(0.0321), pct(-0.105, 2), pct(float("inf"))
+    ('+3.2%', '−10.50%', 'unbounded')
+    """
+    if not math.isfinite(x):
+        return "unbounded"
+    text = f"{100.0 * x:+.{decimals}f}%"
+    if text.strip("+-%0.") == "":
+        text = f"{0.0:.{decimals}f}%"
+    return text.replace("-", "−")
+
+
+def pct_decimals(low: float, high: float) -> int:
+    """Decimals that show an interval's width (in percent) to two significant digits.
+
+    >>> pct_decimals(0.0121, 0.0687), pct_decimals(-0.3, 0.9), pct_decimals(0.0, 0.0004)
+    (1, 0, 3)
+    """
+    width = 100.0 * (high - low)
+    if not (math.isfinite(width) and width > 0):
+        return 1
+    return int(min(max(1 - math.floor(math.log10(width)), 0), 6))

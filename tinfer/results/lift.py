@@ -11,39 +11,13 @@ from dataclasses import dataclass
 from typing import Any
 
 from .card import Card
-from .format import fmt_df, fmt_level
+from .format import fmt_df, fmt_level, pct, pct_decimals
 
 METHOD_NAMES = {
     "fieller": "Fieller's interval for a ratio of means",
     "log": "delta method on the log of the ratio",
     "null": "the mean's interval divided by the reference value",
 }
-
-
-def pct(x: float, decimals: int = 1) -> str:
-    """A lift as a signed percentage with fixed ``decimals`` (real minus sign).
-
-    >>> pct(0.0321), pct(-0.105, 2), pct(float("inf"))
-    ('+3.2%', '−10.50%', 'unbounded')
-    """
-    if not math.isfinite(x):
-        return "unbounded"
-    text = f"{100.0 * x:+.{decimals}f}%"
-    if text.strip("+-%0.") == "":
-        text = f"{0.0:.{decimals}f}%"
-    return text.replace("-", "−")
-
-
-def pct_decimals(low: float, high: float) -> int:
-    """Decimals that show an interval's width (in percent) to two significant digits.
-
-    >>> pct_decimals(0.0121, 0.0687), pct_decimals(-0.3, 0.9), pct_decimals(0.0, 0.0004)
-    (1, 0, 3)
-    """
-    width = 100.0 * (high - low)
-    if not (math.isfinite(width) and width > 0):
-        return 1
-    return int(min(max(1 - math.floor(math.log10(width)), 0), 6))
 
 
 @dataclass(frozen=True, eq=False)

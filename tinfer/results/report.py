@@ -13,7 +13,7 @@ import html as _html
 import math
 from typing import Any
 
-from .format import MINUS, fmt_df, fmt_level, fmt_num, fmt_p, fmt_sig
+from .format import MINUS, fmt_bf, fmt_df, fmt_level, fmt_num, fmt_p, fmt_sig
 
 STYLES = ("plain", "compact")
 EFFECT_SYMBOLS = {"Cohen's d": "d", "d_z": "d_z", "Hedges' g": "g"}
@@ -128,8 +128,6 @@ def pairwise_sentence(r, style: str, most: int = 3) -> str:
 
 def bayes_sentence(b, style: str) -> str:
     """The Bayes factor both ways, with its prior and the posterior of delta."""
-    from .bayes import fmt_bf
-
     lv = fmt_level(b.level)
     lo, hi = (fmt_sig(v, 3) for v in b.interval)
     if style == "plain":
