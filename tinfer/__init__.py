@@ -24,7 +24,7 @@ from .errors import (
     SmallSegmentWarning,
     TinferError,
 )
-from .frames import compare_summaries
+from .frames import compare_summaries, compare_sums
 from .results import (
     BatchResult,
     BayesFactor,
@@ -68,6 +68,7 @@ __all__ = [
     "__version__",
     "adjust",
     "compare_summaries",
+    "compare_sums",
     "from_summary",
     "offline_charts",
     "pairwise_from_summary",

@@ -75,6 +75,23 @@ side : {{"two-sided", "upper", "lower"}}
     "upper": each level exceeds the control; "lower": falls below it. One-sided
     families need ``against`` and Dunnett or separate tests; the studentized range
     (Games-Howell, Tukey-Kramer) is two-sided only.""",
+    "cluster": """\
+cluster : column label, optional
+    The unit of randomisation (a visitor, a batch, a plot) when a unit has several
+    rows: each unit's rows are averaged (summed, for ``ratio``) first and the test runs
+    on one value per unit. Units found in both groups are left out and counted in the
+    notes.""",
+    "covariate": """\
+covariate : column label, optional
+    Each unit's pre-period value of the metric: the CUPED adjustment (Deng et al.
+    2013) subtracts theta (x - mean x) before the test, with theta the pooled
+    within-group slope{where}; the notes say how much variance it removed. A missing
+    covariate where the value is present is an error, never silently dropped.""",
+    "ratio": """\
+ratio : (numerator, denominator), optional
+    A ratio metric such as revenue per session: each group's sum of the numerator
+    over its sum of the denominator, compared by Welch's test on the delta-method
+    variance (Deng, Knoblich and Lu 2018).{ratio_where}""",
 }
 
 #: Slots that stand for several keywords, in order.
@@ -82,6 +99,7 @@ GROUPS = {
     "margin_options": ("margin", "margin_units", "worse", "superior"),
     "batch_options": ("adjust", "rate", "level", "side", "pooled"),
     "pairwise_options": ("method", "against", "level", "pairwise_side"),
+    "experiment_options": ("cluster", "covariate", "ratio"),
 }
 
 #: Words filled in where a caller gives none.
@@ -89,6 +107,8 @@ DEFAULTS = {
     "side": "the true value differs from, is greater than, or is less than ``null``.",
     "sd": "the observed SD",
     "trimmed": "a trimmed mean",
+    "where": "",
+    "ratio_where": " It replaces the value column.",
 }
 
 _SLOT = re.compile(r"^(?P<indent>[ ]*)\{(?P<name>\w+)\}[ ]*$", re.MULTILINE)

@@ -2,8 +2,10 @@
 
 Two samples: the first group's mean over the second's, minus one, with Fieller's interval
 (Welch-type df for the variance of a - rho b, or the pooled df when the test was pooled) or,
-as an option, the delta method on the log of the ratio. One sample: the mean over the
-reference value ``null``, whose interval is the mean's own divided by it (exact).
+as an option, the delta method on the log of the ratio. Paired: the first condition's mean
+over the second's, with the covariance of the two means in both intervals (n - 1 df). One
+sample: the mean over the reference value ``null``, whose interval is the mean's own divided
+by it (exact).
 """
 
 from __future__ import annotations
@@ -49,12 +51,6 @@ def relative_lift_of(result: TResult, method: Any = "fieller", level: Any = None
             "relative_lift compares means; this result compares trimmed means (trim=). "
             "Run the test without trim= for the lift of the means."
         )
-    if result.design == "paired":
-        raise ParameterError(
-            "relative_lift needs each condition's mean; a paired result keeps only the "
-            "differences. Compare the two columns' means with a two-sample view, or report "
-            "the mean difference."
-        )
     if result.design == "one-sample":
         null = float(result.null)
         if not null > 0:
@@ -77,17 +73,17 @@ def relative_lift_of(result: TResult, method: Any = "fieller", level: Any = None
             side=side,
             df=result.df,
         )
-    a, b = result.summaries
-    va, vb, df = two_sample_parts(a.n, a.mean, a.ssd, b.n, b.mean, b.ssd, result.pooled)
+    ma, mb, va, vb, cov, df = _parts(result)
     if method == "fieller":
-        rho, lo, hi, ok = core_ratio.fieller(a.mean, b.mean, va, vb, 0.0, df, level, side)
+        rho, lo, hi, ok = core_ratio.fieller(ma, mb, va, vb, cov, df, level, side)
     else:
-        rho, lo, hi = core_ratio.log_delta(a.mean, b.mean, va, vb, 0.0, df, level, side)
+        rho, lo, hi = core_ratio.log_delta(ma, mb, va, vb, cov, df, level, side)
         ok = np.isfinite(lo) | np.isfinite(hi)
     first, second = (*result.labels, "first", "second")[:2]
+    wide = result.variable == f"{first} vs {second}"  # paired columns: the column names it
     return RelativeLift(
         design=result.design,
-        comparison=f"mean {result.variable} of {first}",
+        comparison=f"mean {first}" if wide else f"mean {result.variable} of {first}",
         variable=result.variable,
         reference=second,
         ratio=float(rho),
@@ -99,6 +95,28 @@ def relative_lift_of(result: TResult, method: Any = "fieller", level: Any = None
         side=side,
         df=float(df),
     )
+
+
+def _parts(result: TResult):
+    """(mean a, mean b, their variances, their covariance, df) of a two-sample or paired t.
+
+    Paired: the covariance of the two means comes from the variances of the columns and of
+    the differences, ``cov = (var a + var b - var d) / 2``; ``a - rho b`` is then one sample
+    of n, so Fieller's interval takes n - 1 df and is exact under normality.
+    """
+    if result.design == "paired":
+        if len(result.groups) < 3:
+            raise ParameterError(
+                "relative_lift of a paired result needs each condition's mean and SD; this "
+                "one was built from the differences alone (from_summary with paired=True)."
+            )
+        a, b, d = result.groups[0], result.groups[1], result.groups[-1]
+        n = float(result.summaries[0].n)
+        cov = (a.sd**2 + b.sd**2 - d.sd**2) / 2.0 / n
+        return a.mean, b.mean, a.sd**2 / n, b.sd**2 / n, cov, n - 1.0
+    a, b = result.summaries
+    va, vb, df = two_sample_parts(a.n, a.mean, a.ssd, b.n, b.mean, b.ssd, result.pooled)
+    return a.mean, b.mean, va, vb, 0.0, df
 
 
 def batch_lift(batch, method: Any = "fieller") -> dict[str, np.ndarray]:

@@ -7,9 +7,11 @@ The names below are the package's public face, used by :mod:`tinfer.scale`.
 from __future__ import annotations
 
 from .accessor import TinferFrameAccessor
-from .batch import check_result_names, check_roles, choose_arms, metric_specs
+from .batch import choose_arms
+from .batch_sums import compare_moments, compare_sums
 from .batch_table import compare_summaries
 from .columns import column, metric_values, missing_column, to_float
+from .experiment_batch import experiment_checks, removed_note
 from .levels import (
     as_list,
     choose_two,
@@ -20,6 +22,7 @@ from .levels import (
     py_value,
 )
 from .series import TinferSeriesAccessor
+from .specs import check_result_names, check_roles, metric_specs
 
 __all__ = [
     "TinferFrameAccessor",
@@ -31,7 +34,10 @@ __all__ = [
     "choose_two",
     "column",
     "combine_codes",
+    "compare_moments",
     "compare_summaries",
+    "compare_sums",
+    "experiment_checks",
     "key_codes",
     "label_pair",
     "levels_text",
@@ -39,5 +45,6 @@ __all__ = [
     "metric_values",
     "missing_column",
     "py_value",
+    "removed_note",
     "to_float",
 ]

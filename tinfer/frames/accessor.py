@@ -17,15 +17,17 @@ from ..errors import DataError
 from ..results.batch import BatchResult
 from ..results.pairwise import PairwiseResult
 from ..results.ttest import TResult
-from . import cuped, ttest
+from . import ttest
 from .batch import compare_frame
 from .columns import one_column
+from .experiment import prepare
 from .pairwise import pairwise_frame
 
 Margin = float | tuple[float, float] | None
 
 _ONE_SIDE = "the mean differs from, is greater than, or is less than ``null``."
 _TWO_SIDE = '"upper": the first mean exceeds the second by more than ``null``.'
+_RATIO_BATCH = " A list of pairs gives several; they join the metrics of ``columns``."
 _PAIR_SIDE = '"upper": the mean difference (first minus second) exceeds ``null``.'
 
 
@@ -89,7 +91,7 @@ class TinferFrameAccessor:
     @fill_params(side=_TWO_SIDE, sd="the pooled SD", trimmed="a trimmed mean difference")
     def two_sample(
         self,
-        column: Hashable | Sequence[Hashable],
+        column: Hashable | Sequence[Hashable] | None = None,
         by: Hashable | None = None,
         *,
         groups: Sequence | None = None,
@@ -105,13 +107,15 @@ class TinferFrameAccessor:
         trim: float = 0.0,
         cluster: Hashable | None = None,
         covariate: Hashable | None = None,
+        ratio: tuple[Hashable, Hashable] | None = None,
     ) -> TResult:
         """Compare the means of two independent groups (Welch by default).
 
         Parameters
         ----------
         column : column label, or a pair of labels
-            The measurements in long form, split by ``by``; or two columns, one per group.
+            The measurements in long form, split by ``by``; or two columns, one per group
+            (left out with ``ratio``).
         by : column label, optional
             The grouping column for long data. It must have two levels unless ``groups``
             names the two to compare.
@@ -127,15 +131,7 @@ class TinferFrameAccessor:
         {units}
         {margin_options}
         {trim}
-        cluster : column label, optional
-            The unit of randomisation (a visitor, a batch, a plot) when a unit has several
-            rows: each unit's rows are averaged first and the test runs on one mean per unit.
-            Units found in both groups are left out and counted in the result's notes.
-        covariate : column label, optional
-            Each unit's pre-period value of the metric: the CUPED adjustment (Deng et al.
-            2013) subtracts theta (x - mean x) before the test, with theta the pooled
-            within-group slope; the notes say how much variance it removed. A missing
-            covariate where the value is present is an error, never silently dropped.
+        {experiment_options}
 
         Returns
         -------
@@ -153,9 +149,10 @@ class TinferFrameAccessor:
         opts = dict(null=null, side=side, level=level, pooled=pooled, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
         if by is None:
-            if cluster is not None or covariate is not None:
+            if cluster is not None or covariate is not None or ratio is not None:
                 raise DataError(
-                    "cluster= and covariate= work on long data: give by= (the group column) too."
+                    "cluster=, covariate= and ratio= work on long data: give by= (the group "
+                    "column) too."
                 )
             if not _is_pair(column):
                 raise DataError(
@@ -165,7 +162,9 @@ class TinferFrameAccessor:
             a, b = (one_column(self._obj, c) for c in column)
             variable = f"{column[0]} vs {column[1]}"
             return ttest.two_sample(a, b, variable, func="two_sample", **opts)
-        frame, notes = cuped.prepare(self._obj, column, by, groups, cluster, covariate)
+        if column is None and ratio is None:
+            raise DataError("two_sample needs a value column (or ratio=).")
+        frame, column, notes = prepare(self._obj, column, by, groups, cluster, covariate, ratio)
         a, b, no_key = ttest.two_groups(frame, column, by, groups)
         if no_key:
             notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)
@@ -255,7 +254,7 @@ class TinferFrameAccessor:
             variable = str(first)
         return ttest.paired(a, b, dropped, variable, func="paired", **opts)
 
-    @fill_params(side=_TWO_SIDE)
+    @fill_params(side=_TWO_SIDE, where=", per segment and metric", ratio_where=_RATIO_BATCH)
     def compare(
         self,
         columns: Hashable | Sequence[Hashable] | None = None,
@@ -272,6 +271,9 @@ class TinferFrameAccessor:
         pooled: bool = False,
         pairwise: str | None = None,
         against: Hashable | None = None,
+        cluster: Hashable | None = None,
+        covariate: Hashable | None = None,
+        ratio: Sequence | None = None,
     ) -> BatchResult:
         """Many t tests at once: every metric in every segment, with adjusted p-values.
 
@@ -308,6 +310,7 @@ class TinferFrameAccessor:
         against : label, optional
             With ``pairwise``: a control level of ``by``; each other level is compared
             with it (default method "dunnett").
+        {experiment_options}
 
         Returns
         -------
@@ -327,21 +330,11 @@ class TinferFrameAccessor:
         ('new minus old', 2, [4.0, 2.33])
         """
         return compare_frame(
-            self._obj,
-            columns,
-            by,
-            within,
-            groups=groups,
-            paired=paired,
-            null=null,
-            adjust=adjust,
-            rate=rate,
-            level=level,
-            side=side,
-            pooled=pooled,
-            pairwise=pairwise,
-            against=against,
-        )
+            self._obj, columns, by, within, groups=groups, paired=paired, null=null,
+            adjust=adjust, rate=rate, level=level, side=side, pooled=pooled,
+            pairwise=pairwise, against=against, cluster=cluster, covariate=covariate,
+            ratio=ratio,
+        )  # fmt: skip
 
     @fill_params()
     def pairwise(

@@ -17,10 +17,18 @@ import numpy as np
 import pandas as pd
 
 from ..analyses import check_method, check_options, from_cube, run_pairwise_batch
+from ..core.comoments import FIELDS, Comoments, ratio_summary
 from ..core.grouped import grouped_moments
 from ..errors import DataError, ParameterError
-from ..results.batch import RESULT_COLUMNS, BatchResult
+from ..results.batch import BatchResult
 from .columns import column, metric_values, reject_inf
+from .experiment_batch import (
+    adjusted_cube,
+    check_covariate,
+    experiment_checks,
+    pair_moments,
+    unit_frame,
+)
 from .levels import (
     as_list,
     choose_two,
@@ -32,70 +40,13 @@ from .levels import (
     levels_text,
     py_value,
 )
+from .specs import check_roles, metric_specs
 
 #: Up to this many levels of ``by``, every level gets its own column of group codes and the
 #: two compared levels are picked after counting (no remapping pass over the rows).
 FEW_LEVELS = 16
 #: The phrase naming a two-level comparison of a batch in messages.
 WHAT = "two-sample comparison"
-
-
-def check_roles(keys: Sequence[Hashable], by, specs, func: str) -> None:
-    """Refuse a column used in two roles: a segment key that is also ``by`` or a metric."""
-    values = {c for _, cols in specs for c in cols}
-    for k in keys:
-        if (by is not None and k == by) or k in values:
-            is_by = by is not None and k == by
-            role = "the group column given as by" if is_by else "a value column"
-            raise ParameterError(
-                f"The 'within' parameter of {func} names {k!r}, which is also {role}. A column "
-                "can split rows into segments or be compared, not both; drop it from within."
-            )
-    check_result_names(keys, func)
-
-
-def check_result_names(keys: Sequence[Hashable], func: str) -> None:
-    """Refuse segment columns whose names clash with columns of the result table."""
-    taken = set(RESULT_COLUMNS) | {"n", "mean", "sd", "n_a", "n_b", "mean_a", "mean_b"}
-    taken |= {"sd_a", "sd_b", "first", "second", "p_family"}
-    for k in keys:
-        if str(k) in taken:
-            raise ParameterError(
-                f"The 'within' parameter of {func} names a column {k!r} that clashes with a "
-                "column of the result table. Rename it first, e.g. df.rename(columns=...)."
-            )
-
-
-def metric_specs(columns, paired, func) -> list[tuple[str, tuple]]:
-    """(name, columns) per metric: ("x", ("x",)) or ("before minus after", (before, after))."""
-    if paired is not None:
-        if columns is not None:
-            raise ParameterError(
-                f"{func} takes value columns or paired=(first, second), not both. "
-                f"Got columns={columns!r} and paired={paired!r}."
-            )
-        pairs = [paired] if _is_pair_of_labels(paired) else list(paired)
-        if not pairs or not all(_is_pair_of_labels(p) for p in pairs):
-            raise ParameterError(
-                f"The 'paired' parameter of {func} must be a pair of columns (first, second) "
-                f"or a list of such pairs. Got {paired!r} instead."
-            )
-        return [(f"{p[0]} minus {p[1]}", (p[0], p[1])) for p in pairs]
-    cols = as_list(columns)
-    if not cols:
-        raise ParameterError(
-            f"The 'columns' parameter of {func} must name one or more value columns. "
-            f"Got {columns!r} instead."
-        )
-    return [(str(c), (c,)) for c in cols]
-
-
-def _is_pair_of_labels(p) -> bool:
-    return (
-        isinstance(p, tuple | list)
-        and len(p) == 2
-        and not any(isinstance(v, tuple | list) for v in p)
-    )
 
 
 def choose_arms(
@@ -182,7 +133,14 @@ def _moments(df, specs, g, key_ok, counts, n_groups) -> tuple[np.ndarray, ...]:
     n, mean, ssd, lo = (np.empty(shape) for _ in range(4))
     miss = np.zeros(shape)
     g_ok = g if key_ok is None else g[key_ok]
-    for j, (_, cols) in enumerate(specs):
+    for j, (_, cols, kind) in enumerate(specs):
+        if kind == "ratio":
+            co, use = pair_moments(df, cols, g, key_ok, n_groups)
+            s = ratio_summary(co)
+            n[j], mean[j], lo[j], ssd[j] = s.n, s.mean, 0.0, s.ssd
+            lost = ~use if key_ok is None else ~use & key_ok
+            miss[j] = np.bincount(g[lost], minlength=n_groups)
+            continue
         x = metric_values(df, cols, check_inf=False)
         xs = x if key_ok is None else x[key_ok]
         s = grouped_moments(xs, g_ok, n_groups, counts=counts, finite_only=True)
@@ -208,21 +166,20 @@ def compare_frame(
     pairwise: str | None = None,
     against=None,
     func: str = "compare",
+    cluster=None,
+    covariate=None,
+    ratio=None,
     **opts,
 ) -> BatchResult:
     """The DataFrame path of ``df.tinfer.compare`` (see its docstring for the options)."""
     options = check_options(func, **opts)
-    specs = metric_specs(columns, paired, func)
-    keys = as_list(within)
-    for k in keys:
-        column(df, k)
-    check_roles(keys, by, specs, func)
-    if by is not None and paired is not None:
-        raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
-    if pairwise is not None or against is not None:
-        return _pairwise_batch(df, specs, by, keys, groups, pairwise, against, options, func)
-    design = "paired" if paired is not None else ("two-sample" if by is not None else "one-sample")
+    specs, keys = _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func)
     notes: list[str] = []
+    if cluster is not None:
+        df, specs, notes = unit_frame(df, keys, by, cluster, specs, covariate)
+    if pairwise is not None or against is not None:
+        return _pairwise_batch(df, specs, by, keys, groups, pairwise, against, options, func, notes)
+    design = "paired" if paired is not None else ("two-sample" if by is not None else "one-sample")
     seg = _segments(df, keys)
     if design == "two-sample":
         arms = _arms(df, by, groups, seg)
@@ -246,29 +203,69 @@ def compare_frame(
         cols = [0]
         names = specs[0][1] if paired is not None else ("mean", options["null"])
         labels = tuple(str(v) for v in names)
-    n, mean, lo, ssd, miss = _moments(df, specs, arms.codes, key_ok, counts, n_groups)
-    if miss.sum():
-        notes.append(f"{int(miss.sum())} missing value(s) dropped.")
     keep = np.flatnonzero(by_seg[:, cols].sum(axis=1) > 0)  # segments with compared rows
 
     def pick(arr):
         return arr.reshape(len(specs), seg.size, arms.width)[:, keep][:, :, cols]
 
+    if covariate is None:
+        parts = _moments(df, specs, arms.codes, key_ok, counts, n_groups)
+        if parts[4].sum():
+            notes.append(f"{int(parts[4].sum())} missing value(s) dropped.")
+        n, mean, lo, ssd, miss = (pick(v) for v in parts)
+    else:
+        n, mean, lo, ssd, miss = _adjusted(
+            df, specs, covariate, arms, key_ok, n_groups, cols, pick, notes
+        )
     return from_cube(
         design,
-        pick(n),
-        pick(mean),
-        pick(ssd),
+        n,
+        mean,
+        ssd,
         present=None,
         segments=seg.values(keep),
         keys=[str(k) for k in keys],
         metrics=[s[0] for s in specs],
         labels=labels,
         options=options,
-        n_missing=pick(miss),
+        n_missing=miss,
         notes=notes,
-        mean_lo=pick(lo),
+        mean_lo=lo,
     )
+
+
+def _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func):
+    """The metric specs and segment keys of a batch, after every check of the options."""
+    specs = metric_specs(columns, paired, func, ratio)
+    keys = as_list(within)
+    for k in keys:
+        column(df, k)
+    check_roles(keys, by, specs, func)
+    if by is not None and paired is not None:
+        raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
+    experiment_checks(func, by, paired, pairwise, covariate, specs)
+    return specs, keys
+
+
+def _adjusted(df, specs, covariate, arms: _Arms, key_ok, n_groups, cols, pick, notes):
+    """n, mean, mean_lo, ssd, missing of the compared arms after the pre-period adjustment."""
+    g = arms.codes
+    compared = np.isin(g % arms.width, cols) & (g >= 0)
+    fields, missing = [], []
+    for _, (value,), _ in specs:
+        check_covariate(df, value, covariate, compared)
+        co, use = pair_moments(df, (value, covariate), g, key_ok, n_groups)
+        lost = ~use if key_ok is None else ~use & key_ok
+        missing.append(np.bincount(g[lost], minlength=n_groups))
+        fields.append(co)
+    co = Comoments(*(np.stack([getattr(c, f) for c in fields]) for f in FIELDS))
+    picked = Comoments(*(pick(getattr(co, f)) for f in FIELDS))
+    (n, mean, ssd), note = adjusted_cube(picked, covariate)
+    miss = np.stack(missing)
+    if miss.sum():
+        notes.append(f"{int(miss.sum())} missing value(s) dropped.")
+    notes.append(note)
+    return n, mean, np.zeros_like(mean), ssd, pick(miss)
 
 
 def _compared(arms: _Arms, by_seg: np.ndarray, by, groups, notes: list[str]):
@@ -289,7 +286,9 @@ def _compared(arms: _Arms, by_seg: np.ndarray, by, groups, notes: list[str]):
 MAX_PAIRWISE_LEVELS = 20
 
 
-def _pairwise_batch(df, specs, by, keys, groups, method, against, options, func) -> BatchResult:
+def _pairwise_batch(
+    df, specs, by, keys, groups, method, against, options, func, notes
+) -> BatchResult:
     """``compare(..., pairwise=method)``: every level of ``by`` in every segment."""
     if by is None:
         raise ParameterError(
@@ -338,7 +337,7 @@ def _pairwise_batch(df, specs, by, keys, groups, method, against, options, func)
     method = check_method(
         method, None if control is None else labels[control], options["side"], func
     )
-    notes = []
+    notes = list(notes)
     if key_ok is not None and not key_ok.all():
         lost = int((~key_ok).sum())
         notes.append(f"{lost} row(s) with a missing segment key or {by!r} value were not used.")

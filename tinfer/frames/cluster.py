@@ -18,9 +18,18 @@ from .columns import column, to_float
 
 
 def per_unit_means(
-    df: pd.DataFrame, value: Hashable, by: Hashable, cluster: Hashable, extra: tuple = ()
+    df: pd.DataFrame,
+    value: Hashable,
+    by: Hashable,
+    cluster: Hashable,
+    extra: tuple = (),
+    how: str = "mean",
 ) -> tuple[pd.DataFrame, tuple[str, ...]]:
     """A frame with one row per unit (its mean of ``value`` and its group) and the notes.
+
+    ``extra`` columns are averaged alongside (a covariate). With ``how="sum"`` (the two
+    columns of a ratio metric, ``value`` and ``extra``) each unit's rows are summed instead,
+    and a row missing either value is left out.
 
     Examples
     --------
@@ -47,16 +56,14 @@ def per_unit_means(
     both = arms.index[arms > 1]
     if len(both):
         frame = frame[~frame["u"].isin(both)]
-    rows = int(frame["v"].notna().sum())
     cols = ["v", *(f"x{i}" for i in range(len(extra)))]
-    means = (
-        frame.dropna(subset=["v"])
-        .groupby(["u", "g"], sort=False, observed=True)[cols]
-        .mean()
-        .reset_index()
-    )
+    usable = frame[cols].notna().all(axis=1) if how == "sum" else frame["v"].notna()
+    rows = int(usable.sum())
+    grouped = frame[usable].groupby(["u", "g"], sort=False, observed=True)[cols]
+    means = (grouped.sum() if how == "sum" else grouped.mean()).reset_index()
+    verb = "summed" if how == "sum" else "averaged"
     notes = [
-        f"Rows averaged per {cluster!r} unit: {rows:,} rows became {len(means):,} units, and "
+        f"Rows {verb} per {cluster!r} unit: {rows:,} rows became {len(means):,} units, and "
         "the test treats units, not rows, as independent."
     ]
     if len(both):
@@ -66,9 +73,10 @@ def per_unit_means(
         )
     if no_unit:
         notes.append(f"{no_unit:,} row(s) with a missing {cluster!r} were not used.")
-    no_value = int(frame["v"].isna().sum())
+    no_value = int((~usable).sum())
     if no_value:
-        notes.append(f"{no_value:,} row(s) with a missing {value!r} were not used.")
+        what = " or ".join(repr(c) for c in (value, *extra)) if how == "sum" else repr(value)
+        notes.append(f"{no_value:,} row(s) with a missing {what} were not used.")
     out = pd.DataFrame({value: means["v"].to_numpy(), by: means["g"].to_numpy()})
     for i, name in enumerate(extra):
         out[name] = means[f"x{i}"].to_numpy()

@@ -17,7 +17,6 @@ import pandas as pd
 
 from ..errors import DataError
 from .batch import choose_arms
-from .cluster import per_unit_means
 from .columns import column, to_float
 from .levels import group_codes
 
@@ -60,16 +59,3 @@ def adjust(
     )
     out = pd.DataFrame({value: adjusted, by: column(df, by).to_numpy()})
     return out, notes
-
-
-def prepare(df, value, by, groups, cluster, covariate) -> tuple[pd.DataFrame, tuple[str, ...]]:
-    """The frame a two-sample test reads: per-unit means (``cluster``), then the
-    adjustment (``covariate``); with the notes each step leaves."""
-    frame, notes = df, ()
-    if cluster is not None:
-        extra = () if covariate is None else (covariate,)
-        frame, notes = per_unit_means(df, value, by, cluster, extra)
-    if covariate is not None:
-        frame, more = adjust(frame, value, by, covariate, groups)
-        notes += more
-    return frame, notes

@@ -38,15 +38,19 @@ import numpy as np
 from dask.dataframe.extensions import register_dataframe_accessor
 
 from ..analyses import build, check_options, group_stats
+from ..core.comoments import Comoments, adjusted_arms, ratio_summary
 from ..core.summary import Summary
 from ..errors import DataError, ParameterError
 from ..frames import (
     as_list,
     check_roles,
     choose_two,
+    compare_moments,
     compare_summaries,
+    experiment_checks,
     label_pair,
     metric_specs,
+    removed_note,
 )
 from ..results import BatchResult, TResult
 from .summaries import METRIC, merged_summaries, partial_summaries, summary_of
@@ -95,8 +99,8 @@ class TinferDaskAccessor:
 
     def two_sample(
         self,
-        column: Hashable,
-        by: Hashable,
+        column: Hashable | None = None,
+        by: Hashable | None = None,
         *,
         groups: Sequence | None = None,
         null: float = 0.0,
@@ -104,41 +108,51 @@ class TinferDaskAccessor:
         level: float = 0.95,
         pooled: bool = False,
         units: str | None = None,
+        covariate: Hashable | None = None,
+        ratio: Sequence | None = None,
     ) -> TResult:
         """Two independent groups of ``column`` split by ``by`` (long form; Welch by default).
 
-        See ``DataFrame.tinfer.two_sample``.
+        See ``DataFrame.tinfer.two_sample``; ``ratio=`` and ``covariate=`` work as there, from
+        co-moments merged exactly across partitions (``cluster=``: aggregate per unit first).
         """
-        table, no_key = merged_summaries(self._obj, [by], [(str(column), (column,), "value")])
+        if by is None or (column is None) == (ratio is None):
+            raise DataError("two_sample on Dask needs by= and either a value column or ratio=.")
+        if ratio is not None and covariate is not None:
+            raise DataError("ratio= does not combine with covariate=; give one of them.")
+        variable = str(column)
+        spec = (variable, (column,), "value")
+        if ratio is not None:
+            spec = metric_specs(None, None, "two_sample", tuple(ratio))[0]
+            variable = spec[0]
+        elif covariate is not None:
+            spec = (variable, (column, covariate), "adjust")
+            variable = f"{column} (adjusted for {covariate})"
+        table, no_key = merged_summaries(self._obj, [by], [spec])
         levels = table[by].to_numpy(dtype=object)
         first, second = choose_two(list(levels), by, groups, "two-sample comparison")
-        sums, miss = [], []
-        for i in (first, second):
-            row = table.iloc[i]
-            sums.append(
-                Summary(
-                    np.asarray(row["n"]),
-                    np.asarray(row["mean"]),
-                    np.asarray(row["ssd"]),
-                    np.asarray(row["mean_lo"]),
-                )
-            )
-            miss.append(int(row["n_missing"]))
+        co = _comoments(table)
+        notes = [f"{no_key} row(s) with a missing {by!r} value were not used."] if no_key else []
+        if ratio is not None:
+            sums = tuple(ratio_summary(co.take(i)) for i in (first, second))
+        elif covariate is not None:
+            adj = adjusted_arms(co.take(first), co.take(second))
+            sums, notes = (adj.first, adj.second), [*notes, removed_note(adj, covariate)]
+        else:
+            sums = tuple(_summary(table.iloc[i]) for i in (first, second))
         return build(
             "two-sample",
-            tuple(sums),
+            sums,
             func="two_sample",
-            variable=str(column),
+            variable=variable,
             labels=label_pair(levels[first], levels[second]),
-            n_missing=tuple(miss),
+            n_missing=tuple(int(table.iloc[i]["n_missing"]) for i in (first, second)),
             null=null,
             side=side,
             level=level,
             pooled=pooled,
             units=units,
-            warnings=(f"{no_key} row(s) with a missing {by!r} value were not used.",)
-            if no_key
-            else (),
+            warnings=tuple(notes),
         )
 
     def paired(
@@ -187,8 +201,14 @@ class TinferDaskAccessor:
         level: float = 0.95,
         side: str = "two-sided",
         pooled: bool = False,
+        covariate: Hashable | None = None,
+        ratio: Sequence | None = None,
     ) -> BatchResult:
         """Many tests at once; see ``DataFrame.tinfer.compare`` (same options, same result).
+
+        ``ratio=`` and ``covariate=`` work as there, from co-moments merged exactly across
+        partitions. ``cluster=`` is not offered: aggregate the rows per unit first, e.g.
+        ``ddf.groupby(["segment", "arm", "visitor"]).sum().reset_index()``.
 
         Examples
         --------
@@ -206,11 +226,11 @@ class TinferDaskAccessor:
         options = check_options(
             func, adjust=adjust, rate=rate, level=level, side=side, null=null, pooled=pooled
         )
-        specs2 = metric_specs(columns, paired, func)
+        specs2 = metric_specs(columns, paired, func, ratio)
         keys = as_list(within)
         check_roles(keys, by, specs2, func)
-        kind = "diff" if paired is not None else "value"
-        specs = [(name, cols, kind) for name, cols in specs2]
+        experiment_checks(func, by, paired, None, covariate, specs2)
+        specs = [(n, (*c, covariate), "adjust") for n, c, _ in specs2] if covariate else specs2
         all_keys = keys + ([by] if by is not None else [])
         table, dropped = merged_summaries(self._obj, all_keys, specs)
         if table.empty:
@@ -222,19 +242,21 @@ class TinferDaskAccessor:
         table["metric"] = [names[i] for i in table[METRIC]]
         table = table.drop(columns=[METRIC])
         opts: dict[str, Any] = dict(options)
-        if by is not None:
-            if paired is not None:
-                raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
-            result = compare_summaries(
-                table, within=keys, arm=by, groups=groups, metric="metric", **opts
-            )
-        elif paired is not None:
-            labs = tuple(str(v) for v in specs2[0][1])
-            result = compare_summaries(
-                table, within=keys, metric="metric", paired=True, labels=labs, **opts
-            )
+        if by is not None and paired is not None:
+            raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
+        co = _comoments(table)
+        if covariate is not None:
+            stats = table.drop(columns=["n", "mean", "mean_lo", "ssd", "mx", "sxx", "sxy"])
+            result = compare_moments(
+                stats, co, "covariate", keys, covariate=covariate, arm=by, groups=groups,
+                metric="metric", **opts,
+            )  # fmt: skip
         else:
-            result = compare_summaries(table, within=keys, metric="metric", **opts)
+            table = _ratio_rows(table, co, [n for n, _, kind in specs2 if kind == "ratio"])
+            more: dict[str, Any] = {"arm": by, "groups": groups} if by is not None else {}
+            if paired is not None:
+                more = {"paired": True, "labels": tuple(str(v) for v in specs2[0][1])}
+            result = compare_summaries(table, within=keys, metric="metric", **more, **opts)
         notes = list(result.warnings)
         if dropped:
             what = "segment key" if by is None else f"segment key or {by!r} value"
@@ -245,6 +267,29 @@ class TinferDaskAccessor:
         if notes != list(result.warnings):
             result = dataclasses.replace(result, warnings=tuple(dict.fromkeys(notes)))
         return result
+
+
+def _ratio_rows(table, co: Comoments, ratio_names: list[str]):
+    """The table with each ratio metric's row as the summary of its linearised values."""
+    ratios = table["metric"].isin(ratio_names).to_numpy()
+    if ratios.any():
+        r = ratio_summary(co)
+        table.loc[ratios, "mean"] = r.mean[ratios]
+        table.loc[ratios, "ssd"] = r.ssd[ratios]
+        table.loc[ratios, "mean_lo"] = 0.0
+    return table.drop(columns=["mx", "sxx", "sxy"], errors="ignore")
+
+
+def _summary(row) -> Summary:
+    return Summary(*(np.asarray(row[c]) for c in ("n", "mean", "ssd", "mean_lo")))
+
+
+def _comoments(table) -> Comoments:
+    """The merged co-moments of every row (zeros where the metric has one column)."""
+    zeros = np.zeros(len(table))
+    cross = [table[c].to_numpy() if c in table else zeros for c in ("mx", "sxx", "sxy")]
+    y = table["mean"].to_numpy() + table["mean_lo"].to_numpy()
+    return Comoments(table["n"].to_numpy(), y, cross[0], table["ssd"].to_numpy(), *cross[1:])
 
 
 __all__ = ["TinferDaskAccessor", "merged_summaries", "partial_summaries"]

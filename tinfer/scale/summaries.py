@@ -12,16 +12,22 @@ import dask.dataframe as dd
 import numpy as np
 import pandas as pd
 
+from ..core.comoments import Comoments, grouped_comoments
 from ..core.grouped import grouped_moments
 from ..core.summary import Summary, merge
+from ..errors import DataError
 from ..frames import combine_codes, key_codes, metric_values, missing_column
 
 METRIC = "__tinfer_metric__"
 STATS = ("__n__", "__mean__", "__lo__", "__ssd__", "__missing__")
+#: The extra co-moments of two-column metrics (a ratio, or a value with its covariate).
+CROSS = ("__mx__", "__sxx__", "__sxy__")
 DROPPED = "__dropped__"
 
 # A metric spec: (name, columns, kind). kind "value" takes one column; "diff" takes
-# first minus second; "first"/"second" take one column of a pair where both are present.
+# first minus second; "first"/"second" take one column of a pair where both are present;
+# "ratio" and "adjust" take y and x and keep their co-moments (rows missing x are an error
+# for "adjust", left out and counted for "ratio").
 Spec = tuple[str, tuple, str]
 
 
@@ -58,13 +64,20 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
     dropped = int(n_rows - ok.sum())
     frames = []
     for j, (_, cols, kind) in enumerate(specs):
-        x = _values(pdf, cols, kind)[ok]
-        fin = np.isfinite(x)
-        n, mean, lo, ssd = grouped_moments(x[fin], g[fin], n_groups)
-        miss = np.bincount(g[~fin], minlength=n_groups)
         out = {k: pdf[k].iloc[first_row].to_numpy() for k in keys}
+        if kind in ("ratio", "adjust"):
+            co, fin = _pair_partial(pdf, cols, kind, ok, g, n_groups)
+            n, mean, lo, ssd = co.n, co.my, np.zeros(n_groups), co.syy
+            cross = (co.mx, co.sxx, co.sxy)
+        else:
+            x = _values(pdf, cols, kind)[ok]
+            fin = np.isfinite(x)
+            n, mean, lo, ssd = grouped_moments(x[fin], g[fin], n_groups)
+            cross = (np.zeros(n_groups),) * 3
+        miss = np.bincount(g[~fin], minlength=n_groups)
         out[METRIC] = np.full(n_groups, j, dtype=np.int64)
         out["__n__"], out["__mean__"], out["__lo__"], out["__ssd__"] = n, mean, lo, ssd
+        out |= dict(zip(CROSS, cross, strict=True))
         out["__missing__"] = miss.astype(np.int64)
         out[DROPPED] = np.zeros(n_groups, dtype=np.int64)
         if j == 0 and n_groups:  # once per partition: the client sums this column
@@ -74,18 +87,32 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
     if dropped and n_groups == 0:
         blank = pd.DataFrame({k: pd.Series([None], dtype=object) for k in keys})
         blank[METRIC] = -1
-        for c in STATS:
+        for c in STATS + CROSS:
             blank[c] = 0.0 if c != "__missing__" else 0
         blank[DROPPED] = dropped
         table = pd.concat([table, blank], ignore_index=True)
     return table
 
 
+def _pair_partial(pdf, cols, kind, ok, g, n_groups) -> tuple[Comoments, np.ndarray]:
+    """Co-moments of (y, x) per group in one partition, and the rows used."""
+    y, x = (metric_values(pdf, (c,))[ok] for c in cols)
+    if kind == "adjust":
+        bad = ~np.isnan(y) & np.isnan(x)
+        if bad.any():
+            raise DataError(
+                f"{int(bad.sum()):,} row(s) have {cols[0]!r} but no {cols[1]!r}. The adjustment "
+                "needs the pre-period value of every unit: fill it (a stated rule) or drop them."
+            )
+    fin = ~(np.isnan(y) | np.isnan(x))
+    return grouped_comoments(y[fin], x[fin], g[fin], n_groups), fin
+
+
 def _meta(ddf: dd.DataFrame, keys: list) -> pd.DataFrame:
     meta = {k: ddf._meta[k].iloc[:0] for k in keys}
     frame = pd.DataFrame({k: pd.Series(v.to_numpy(), dtype=v.dtype) for k, v in meta.items()})
     frame[METRIC] = pd.Series([], dtype=np.int64)
-    for c in ("__n__", "__mean__", "__lo__", "__ssd__"):
+    for c in ("__n__", "__mean__", "__lo__", "__ssd__", *CROSS):
         frame[c] = pd.Series([], dtype=np.float64)
     frame["__missing__"] = pd.Series([], dtype=np.int64)
     frame[DROPPED] = pd.Series([], dtype=np.int64)
@@ -159,6 +186,22 @@ def merged_summaries(ddf: dd.DataFrame, keys: list, specs: list[Spec]) -> tuple[
     out["ssd"] = s.ssd[:, 0]
     missing = np.bincount(gid, weights=table["__missing__"].to_numpy(), minlength=uniq.size)
     out["n_missing"] = missing.astype(np.int64)
+    if table[list(CROSS)].to_numpy().any():  # two-column metrics: merge their co-moments
+        parts = [p_n, p_hi + p_lo, *(table[c].to_numpy()[order] for c in ("__mx__", "__ssd__"))]
+        parts += [table[c].to_numpy()[order] for c in ("__sxx__", "__sxy__")]
+        cells = []
+        for v in parts:
+            cell = np.zeros(shape)
+            cell[gs, slot] = v
+            cells.append(cell)
+        c = Comoments(*cells)
+        while c.n.shape[1] > 1:
+            if c.n.shape[1] % 2:
+                c = Comoments(*(np.hstack([v, np.zeros((uniq.size, 1))]) for v in c.fields()))
+            c = c.take((slice(None), slice(0, None, 2))).merge(
+                c.take((slice(None), slice(1, None, 2)))
+            )
+        out["mx"], out["sxx"], out["sxy"] = c.mx[:, 0], c.sxx[:, 0], c.sxy[:, 0]
     return out, dropped
 
 
