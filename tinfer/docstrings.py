@@ -75,6 +75,11 @@ side : {{"two-sided", "upper", "lower"}}
     "upper": each level exceeds the control; "lower": falls below it. One-sided
     families need ``against`` and Dunnett or separate tests; the studentized range
     (Games-Howell, Tukey-Kramer) is two-sided only.""",
+    "relative": """\
+relative : bool or {{"fieller", "log"}}, default False
+    Also report the relative change {relative_what}, minus one, in percent, with its
+    interval: Fieller's (True or "fieller"; "unbounded" when the base mean is not
+    clearly away from zero) or the delta method on the log of the ratio ("log").""",
     "cluster": """\
 cluster : column label, optional
     The unit of randomisation (a visitor, a batch, a plot) when a unit has several
@@ -109,6 +114,7 @@ DEFAULTS = {
     "trimmed": "a trimmed mean",
     "where": "",
     "ratio_where": " It replaces the value column.",
+    "relative_what": "(the first mean over the second)",
 }
 
 _SLOT = re.compile(r"^(?P<indent>[ ]*)\{(?P<name>\w+)\}[ ]*$", re.MULTILINE)

@@ -12,6 +12,7 @@ from .bootstrap import bootstrap
 from .diagnostics import diagnose
 from .equivalence import check_margin, equivalence_for
 from .from_summary import from_summary
+from .lift import check_relative
 from .multiplicity import adjust
 from .pairwise import check_method, pairwise_from_summary, run_pairwise
 from .plan import detectable_effect_of, follow_up, plan, replan
@@ -24,6 +25,7 @@ __all__ = [
     "check_margin",
     "check_method",
     "check_options",
+    "check_relative",
     "detectable_effect_of",
     "diagnose",
     "equivalence_for",

@@ -22,7 +22,10 @@ def _is_seq(x) -> bool:
     return isinstance(x, Sequence | np.ndarray) and not isinstance(x, str)
 
 
-@fill_params(sd="the SD given, the SD of the differences, or the pooled SD of two samples")
+@fill_params(
+    sd="the SD given, the SD of the differences, or the pooled SD of two samples",
+    relative_what="(the first mean over the second; one sample: the mean over ``null``)",
+)
 def from_summary(
     n,
     mean,
@@ -40,6 +43,7 @@ def from_summary(
     margin_units: str = "raw",
     worse: str | None = None,
     superior: bool = False,
+    relative: bool | str = False,
 ) -> TResult:
     """Run a t procedure from published counts, means and standard deviations.
 
@@ -72,6 +76,7 @@ def from_summary(
         What was measured.
     {units}
     {margin_options}
+    {relative}
 
     Returns
     -------
@@ -93,6 +98,7 @@ def from_summary(
         )
     opts = dict(func=func, null=null, side=side, level=level, units=units, variable=variable)
     opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+    opts["relative"] = relative
     if not any(shapes):
         _check_numbers(n, mean, sd, func)
         s = Summary.from_moments(float(n), float(mean), float(sd))

@@ -26,6 +26,17 @@ FUNC = "relative_lift"
 METHODS = ("fieller", "log")
 
 
+def check_relative(relative: Any, func: str) -> str | None:
+    """The lift method a ``relative=`` option asks for: None, "fieller" or "log"."""
+    if relative is None or relative is False:
+        return None
+    if relative is True:
+        return "fieller"
+    if relative in METHODS:
+        return relative
+    raise fail("relative", func, "True, False, 'fieller' or 'log'", relative)
+
+
 def two_sample_parts(na, ma, ssa, nb, mb, ssb, pooled: bool):
     """(va, vb, df at the ratio) of two means from n, mean and ssd (arrays)."""
     na, ma, ssa, nb, mb, ssb = (np.asarray(v, float) for v in (na, ma, ssa, nb, mb, ssb))

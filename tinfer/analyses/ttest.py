@@ -21,6 +21,7 @@ from ..results.parts import Effect, GroupStats
 from ..results.provenance import frozen_copy, now_iso
 from ..results.ttest import TResult
 from .equivalence import check_margin, equivalence_for
+from .lift import check_relative, relative_lift_of
 from .robust import ROBUST_EFFECT, check_trim, trimmed
 
 METHODS = {
@@ -107,8 +108,10 @@ def build(
     worse=None,
     superior=False,
     trim=0.0,
+    relative=False,
 ) -> TResult:
     """Run the procedure for ``design`` on ``summaries`` and wrap the numbers in a TResult."""
+    relative = check_relative(relative, func)
     level = check_level(level, func)
     side = check_side(side, func)
     null = check_finite(null, "null", func)
@@ -145,27 +148,17 @@ def build(
             margin_spec, design=design, summaries=tuple(summaries), null=null, level=level,
             **est, **words,
         )  # fmt: skip
-    return TResult(
-        design=design,
-        variable=str(variable),
-        comparison=comparison,
-        **nums,
-        level=level,
-        side=side,
-        null=null,
+    result = TResult(
+        design=design, variable=str(variable), comparison=comparison, **nums, level=level,
+        side=side, null=null, groups=groups, method=method, pooled=pooled, units=units,
         effect=_effect(c, ROBUST_EFFECT if trim else EFFECT_NAMES[design], level),
-        groups=groups,
-        method=method,
-        pooled=pooled,
-        units=units,
-        warnings=_notes(warnings, groups, nums["p"]),
-        labels=labels,
-        summaries=tuple(summaries),
-        samples=samples,
-        created=now_iso(),
-        trim=trim,
+        warnings=_notes(warnings, groups, nums["p"]), labels=labels,
+        summaries=tuple(summaries), samples=samples, created=now_iso(), trim=trim,
         equivalence=equivalence,
-    )
+    )  # fmt: skip
+    if relative is not None:
+        result = replace(result, lift=relative_lift_of(result, relative))
+    return result
 
 
 def _effect(c, name: str, level: float) -> Effect:
@@ -250,6 +243,10 @@ def check_summary_n(s: Summary, label: str) -> None:
         )
 
 
+def _lift_method(method: str) -> str:
+    return "fieller" if method == "null" else method  # one sample: exact either way
+
+
 def rebuild(result: TResult, **changes) -> TResult:
     """Recompute ``result`` from its stored summaries with other options."""
     allowed = {"level", "side", "null", "pooled", "margin", "margin_units", "worse", "superior"}
@@ -265,6 +262,7 @@ def rebuild(result: TResult, **changes) -> TResult:
         "null": result.null,
         "pooled": result.pooled,
         "trim": result.trim,
+        "relative": None if result.lift is None else _lift_method(result.lift.method),
     }
     eq = result.equivalence
     opts |= {

@@ -169,6 +169,7 @@ class Adjusted:
     second: Summary
     theta: np.ndarray
     removed: np.ndarray
+    adjusted: np.ndarray  # False where x does not vary within the arms (theta 0: unadjusted)
 
 
 def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
@@ -177,7 +178,8 @@ def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
     Theta is ``(sxy_a + sxy_b) / (sxx_a + sxx_b)``, the within-arm pooled slope, so the
     adjusted difference equals the arm coefficient of the least-squares fit of y on arm and
     x; ``mean x`` is over both arms. ``removed`` is the share of the within-arm variance of y
-    that x explains, ``sxy^2 / (sxx syy)`` pooled. Theta is NaN where x does not vary.
+    that x explains, ``sxy^2 / (sxx syy)`` pooled. Where x does not vary within the arms
+    nothing can be adjusted: theta is 0 there and ``adjusted`` False.
 
     Examples
     --------
@@ -189,7 +191,8 @@ def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
     """
     sxy, sxx, syy = a.sxy + b.sxy, a.sxx + b.sxx, a.syy + b.syy
     with np.errstate(invalid="ignore", divide="ignore"):
-        theta = np.where(sxx > 0, sxy / np.where(sxx > 0, sxx, 1.0), np.nan)
+        adjusted = sxx > 0
+        theta = np.where(adjusted, sxy / np.where(adjusted, sxx, 1.0), 0.0)
         centre = (a.n * a.mx + b.n * b.mx) / (a.n + b.n)
         removed = np.where(syy > 0, theta * sxy / np.where(syy > 0, syy, 1.0), 0.0)
 
@@ -198,4 +201,4 @@ def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
         ssd = np.maximum(c.syy - 2.0 * theta * c.sxy + theta * theta * c.sxx, 0.0)
         return Summary(np.asarray(c.n), np.asarray(mean), np.asarray(ssd))
 
-    return Adjusted(arm(a), arm(b), np.asarray(theta), np.asarray(removed))
+    return Adjusted(arm(a), arm(b), np.asarray(theta), np.asarray(removed), np.asarray(adjusted))

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import ParameterError
-from ..results.batch import HEADERS, BatchResult
+from ..results.batch import BatchResult
 from ..results.format import fmt_level, fmt_num, fmt_p
 from .charts import altair, finish
 from .clean import label
@@ -62,10 +62,14 @@ def html_card(r: BatchResult, chart: bool = True) -> str:
     table = ""
     if rows:
         table = data_table(
-            [h for _, h in HEADERS],
-            [[row[k] for k, _ in HEADERS] for row in rows],
+            [h for _, h in r.headers()],
+            [
+                [_keep_together(row[k]) if k == "lift" else row[k] for k, _ in r.headers()]
+                for row in rows
+            ],
             ["tinfer-hit" if row["hit"] == "yes" else "" for row in rows],
             caption=f"Smallest p-values ({fmt_level(r.level)} intervals)",
+            wrap=[j for j, (k, _) in enumerate(r.headers()) if k == "lift"],
         )
     chart_html = ""
     if chart and r.n_tests:
@@ -89,6 +93,12 @@ def html_card(r: BatchResult, chart: bool = True) -> str:
 
 
 # --------------------------------------------------------------------------- charts
+def _keep_together(cell: str) -> str:
+    """A lift cell that may break only before its interval: "+6% (−3%\u00a0to\u00a0+15%)"."""
+    head, sep, tail = cell.partition(" (")
+    return head + sep + tail.replace(" ", "\u00a0")
+
+
 def forest_rows(
     r: BatchResult, top: int = 30, page: int | None = None, metric: str | None = None
 ) -> tuple[list[dict], str]:

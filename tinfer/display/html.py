@@ -122,11 +122,13 @@ def data_table(
     rows: Iterable[Sequence[str]],
     row_classes: Iterable[str] | None = None,
     caption: str = "",
+    wrap: Sequence[int] = (),
 ) -> str:
     """A table with a header row; the first column names the row, the others are numbers.
 
     Cells are plain strings and are escaped here. ``row_classes`` gives each body row a class
-    (or "" for none).
+    (or "" for none). Number cells do not wrap, except in the columns ``wrap`` (indices), which
+    may break at an ordinary space.
 
     >>> data_table(["sample", "n"], [["<a>", "3"]])
     ... # doctest: +NORMALIZE_WHITESPACE
@@ -142,7 +144,10 @@ def data_table(
     body = []
     for row, cls in zip(rows, classes, strict=True):
         cells = f'<th scope="row">{esc(row[0])}</th>'
-        cells += "".join(f'<td class="tinfer-num">{esc(c)}</td>' for c in row[1:])
+        cells += "".join(
+            f'<td class="tinfer-num{" tinfer-wrap" if j in wrap else ""}">{esc(c)}</td>'
+            for j, c in enumerate(row[1:], start=1)
+        )
         attr = f' class="{cls}"' if cls else ""
         body.append(f"<tr{attr}>{cells}</tr>")
     return (

@@ -15,6 +15,7 @@ from typing import Any
 from ..core import distribution as dist
 from ..results.equivalence import level_words
 from ..results.format import fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p, p_equals
+from ..results.lift import SHORT_NAMES
 from ..results.sentences import SIDE_WORDS, test_line
 from ..results.ttest import TResult
 from ..results.words import capital, interval_words
@@ -80,6 +81,10 @@ def result_figures(result: TResult) -> str:
         )),
         ("Method", esc(result.method)),
     ]  # fmt: skip
+    if result.lift is not None:
+        lift = result.lift
+        cell = num(esc(lift.short)) + aside(SHORT_NAMES[lift.method])
+        rows.insert(2, (f"Relative change vs {esc(lift.reference)}", cell))
     return figures_table(rows)
 
 

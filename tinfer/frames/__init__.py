@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from .accessor import TinferFrameAccessor
 from .batch import choose_arms
-from .batch_sums import compare_moments, compare_sums
+from .batch_sums import compare_moments, compare_sums, ratio_stats
 from .batch_table import compare_summaries
 from .columns import column, metric_values, missing_column, to_float
 from .experiment_batch import experiment_checks, removed_note
@@ -45,6 +45,7 @@ __all__ = [
     "metric_values",
     "missing_column",
     "py_value",
+    "ratio_stats",
     "removed_note",
     "to_float",
 ]

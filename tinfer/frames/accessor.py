@@ -108,6 +108,7 @@ class TinferFrameAccessor:
         cluster: Hashable | None = None,
         covariate: Hashable | None = None,
         ratio: tuple[Hashable, Hashable] | None = None,
+        relative: bool | str = False,
     ) -> TResult:
         """Compare the means of two independent groups (Welch by default).
 
@@ -132,6 +133,7 @@ class TinferFrameAccessor:
         {margin_options}
         {trim}
         {experiment_options}
+        {relative}
 
         Returns
         -------
@@ -148,6 +150,7 @@ class TinferFrameAccessor:
         """
         opts = dict(null=null, side=side, level=level, pooled=pooled, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        opts["relative"] = relative
         if by is None:
             if cluster is not None or covariate is not None or ratio is not None:
                 raise DataError(
@@ -177,6 +180,7 @@ class TinferFrameAccessor:
         side=_PAIR_SIDE,
         sd="the SD of the differences",
         trimmed="the trimmed mean of the differences",
+        relative_what="(the first condition's mean over the second's)",
     )
     def paired(
         self,
@@ -195,6 +199,7 @@ class TinferFrameAccessor:
         worse: str | None = None,
         superior: bool = False,
         trim: float = 0.0,
+        relative: bool | str = False,
     ) -> TResult:
         """Paired comparison: the mean of within-unit differences, first minus second.
 
@@ -221,6 +226,7 @@ class TinferFrameAccessor:
         {units}
         {margin_options}
         {trim}
+        {relative}
 
         Returns
         -------
@@ -237,6 +243,7 @@ class TinferFrameAccessor:
         """
         opts = dict(null=null, side=side, level=level, units=units, trim=trim)
         opts |= dict(margin=margin, margin_units=margin_units, worse=worse, superior=superior)
+        opts["relative"] = relative
         if by is None and subject is None:
             if second is None:
                 raise DataError(
@@ -274,6 +281,7 @@ class TinferFrameAccessor:
         cluster: Hashable | None = None,
         covariate: Hashable | None = None,
         ratio: Sequence | None = None,
+        relative: bool | str = False,
     ) -> BatchResult:
         """Many t tests at once: every metric in every segment, with adjusted p-values.
 
@@ -311,6 +319,7 @@ class TinferFrameAccessor:
             With ``pairwise``: a control level of ``by``; each other level is compared
             with it (default method "dunnett").
         {experiment_options}
+        {relative}
 
         Returns
         -------
@@ -333,7 +342,7 @@ class TinferFrameAccessor:
             self._obj, columns, by, within, groups=groups, paired=paired, null=null,
             adjust=adjust, rate=rate, level=level, side=side, pooled=pooled,
             pairwise=pairwise, against=against, cluster=cluster, covariate=covariate,
-            ratio=ratio,
+            ratio=ratio, relative=relative,
         )  # fmt: skip
 
     @fill_params()

@@ -9,6 +9,7 @@ in one vectorised call. The caller's columns are never written to.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Hashable, Sequence
 from dataclasses import dataclass
@@ -16,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from ..analyses import check_method, check_options, from_cube, run_pairwise_batch
+from ..analyses import check_method, check_options, check_relative, from_cube, run_pairwise_batch
 from ..core.comoments import FIELDS, Comoments, ratio_summary
 from ..core.grouped import grouped_moments
 from ..errors import DataError, ParameterError
@@ -169,11 +170,13 @@ def compare_frame(
     cluster=None,
     covariate=None,
     ratio=None,
+    relative=False,
     **opts,
 ) -> BatchResult:
     """The DataFrame path of ``df.tinfer.compare`` (see its docstring for the options)."""
     options = check_options(func, **opts)
     specs, keys = _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func)
+    lift = _relative(relative, by, pairwise, against, func)
     notes: list[str] = []
     if cluster is not None:
         df, specs, notes = unit_frame(df, keys, by, cluster, specs, covariate)
@@ -217,21 +220,19 @@ def compare_frame(
         n, mean, lo, ssd, miss = _adjusted(
             df, specs, covariate, arms, key_ok, n_groups, cols, pick, notes
         )
-    return from_cube(
-        design,
-        n,
-        mean,
-        ssd,
-        present=None,
-        segments=seg.values(keep),
-        keys=[str(k) for k in keys],
-        metrics=[s[0] for s in specs],
-        labels=labels,
-        options=options,
-        n_missing=miss,
-        notes=notes,
-        mean_lo=lo,
-    )
+    result = from_cube(
+        design, n, mean, ssd, present=None, segments=seg.values(keep),
+        keys=[str(k) for k in keys], metrics=[s[0] for s in specs], labels=labels,
+        options=options, n_missing=miss, notes=notes, mean_lo=lo,
+    )  # fmt: skip
+    return result if lift is None else dataclasses.replace(result, relative=lift)
+
+
+def _relative(relative, by, pairwise, against, func) -> str | None:
+    lift = check_relative(relative, func)
+    if lift is not None and (by is None or pairwise is not None or against is not None):
+        raise ParameterError(f"relative= of {func} needs two groups: by= without pairwise=.")
+    return lift
 
 
 def _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func):

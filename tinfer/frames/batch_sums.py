@@ -135,14 +135,31 @@ def compare_moments(
     if use == "covariate":
         table, co, adj = _adjusted(table, co, within, arm, groups, metric)
         note = removed_note(adj, covariate)
-    stats = ratio_summary(co) if use == "ratio" else None
-    table["n"] = co.n
-    table["mean"] = stats.mean if stats is not None else co.my
-    table["ssd"] = stats.ssd if stats is not None else co.syy
+    if use == "ratio":
+        table["n"], table["mean"], table["ssd"], note = ratio_stats(co)
+    else:
+        table["n"], table["mean"], table["ssd"] = co.n, co.my, co.syy
     result = compare_summaries(table, within, **opts)
     if note is not None:
         result = dataclasses.replace(result, warnings=(*result.warnings, note))
     return result
+
+
+def ratio_stats(co: Comoments):
+    """n, mean and ssd of the ratio of sums of every group, and a note where it is undefined.
+
+    A group whose mean denominator is not above 0 has no ratio: its n is reported as 0, so
+    its comparison is untestable instead of stopping the batch.
+    """
+    stats = ratio_summary(co)
+    undefined = np.isnan(stats.mean) & (co.n > 0)
+    note = None
+    if undefined.any():
+        note = (
+            f"{int(undefined.sum()):,} group(s) have a mean denominator not above 0: the ratio "
+            "is undefined there, and their comparisons untestable."
+        )
+    return np.where(undefined, 0.0, co.n), stats.mean, stats.ssd, note
 
 
 def _adjusted(table, co: Comoments, within, arm, groups, metric):

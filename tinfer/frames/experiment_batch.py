@@ -122,14 +122,21 @@ def adjusted_cube(co: Comoments, covariate: Hashable) -> tuple[tuple[np.ndarray,
 
 def removed_note(adj: Adjusted, covariate) -> str:
     """The note on how much variance the pre-period adjustment removed, across tests."""
-    shares = adj.removed[np.isfinite(adj.theta)]
+    shares = adj.removed[adj.adjusted]
+    flat = int(adj.adjusted.size - shares.size)
+    not_used = (
+        f" In {flat:,} test(s) {covariate!r} does not vary within the groups: those are not "
+        "adjusted."
+        if flat
+        else ""
+    )
     if shares.size == 0:
-        return f"Pre-period adjustment by {covariate!r}: no segment could use it."
+        return f"Pre-period adjustment by {covariate!r}: no test could use it.{not_used}"
     lo, mid, hi = (100 * np.quantile(shares, q) for q in (0.0, 0.5, 1.0))
     spread = "" if shares.size == 1 else f" (median; from {lo:.0f}% to {hi:.0f}% across tests)"
     return (
         f"Pre-period adjustment (CUPED) by {covariate!r}, theta per segment and metric: it "
-        f"removed {mid:.0f}% of the variance{spread}."
+        f"removed {mid:.0f}% of the variance{spread}.{not_used}"
     )
 
 

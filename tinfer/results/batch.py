@@ -15,6 +15,7 @@ import numpy as np
 from ..core import multiplicity, procedures
 from .card import Card
 from .format import column_decimals, fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p
+from .lift import lift_cell
 from .provenance import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -130,6 +131,7 @@ class BatchResult(Card):
     pairs: tuple[tuple[str, str], ...] = ()
     row_pair: np.ndarray | None = field(default=None, repr=False)
     p_family: np.ndarray | None = field(default=None, repr=False)
+    relative: str | None = None
 
     # ------------------------------------------------------------------ counts
     @property
@@ -214,6 +216,8 @@ class BatchResult(Card):
                 data["p_family"] = self.p_family
         data["effect"] = self.effect
         data["effect_ci_low"], data["effect_ci_high"] = self.effect_ci
+        if self.relative is not None:
+            data |= {k: v for k, v in self._lift().items() if k != "lift_bounded"}
         two = self.design == "two-sample"
         for arm in ("a", "b") if two else ("a",):
             suffix = f"_{arm}" if two else ""
@@ -264,6 +268,16 @@ class BatchResult(Card):
             frame[name] = values
         return frame
 
+    @functools.cached_property
+    def _lifts(self) -> dict[str, np.ndarray]:
+        from ..analyses.lift import batch_lift
+
+        return batch_lift(self, self.relative or "fieller")
+
+    def _lift(self) -> dict[str, np.ndarray]:
+        """The relative change of every row (``relative=`` in compare), computed once."""
+        return self._lifts
+
     def top(self, k: int = 10) -> pd.DataFrame:
         """The ``k`` rows with the smallest p-values (testable rows only)."""
         frame = self.to_frame()
@@ -304,8 +318,14 @@ class BatchResult(Card):
             return f"{self.method}: paired differences"
         return f"{self.method}: mean against {fmt_num(self.null)}"
 
+    def headers(self) -> tuple[tuple[str, str], ...]:
+        """Keys and titles of the rows' table: :data:`HEADERS`, with the relative change."""
+        if self.relative is None:
+            return HEADERS
+        return (*HEADERS[:4], ("lift", "relative change"), *HEADERS[4:])
+
     def top_rows(self, k: int = TOP_ROWS) -> list[dict[str, str]]:
-        """The ``k`` smallest-p rows as formatted strings, keyed as :data:`HEADERS`."""
+        """The ``k`` smallest-p rows as formatted strings, keyed as :meth:`headers`."""
         seg = self.segment_labels()
         shown = self.order_by_p()[:k]
         d = column_decimals(self.se[shown])  # one rule for the whole column
@@ -325,6 +345,9 @@ class BatchResult(Card):
                     "hit": "yes" if self.discovery[i] else "no",
                 }
             )
+        if self.relative is not None:
+            for i, row in zip(shown, rows, strict=True):
+                row["lift"] = lift_cell(*(float(v[i]) for v in self._lift().values()))
         return rows
 
     def __str__(self) -> str:
@@ -332,10 +355,11 @@ class BatchResult(Card):
         rows = self.top_rows()
         if rows:
             lines.append(f"Smallest p-values ({fmt_level(self.level)} intervals):")
-            widths = {k: max(len(h), *(len(row[k]) for row in rows)) for k, h in HEADERS}
-            lines.append("  " + "  ".join(h.ljust(widths[k]) for k, h in HEADERS))
+            heads = self.headers()
+            widths = {k: max(len(h), *(len(row[k]) for row in rows)) for k, h in heads}
+            lines.append("  " + "  ".join(h.ljust(widths[k]) for k, h in heads))
             for row in rows:
-                lines.append("  " + "  ".join(row[k].ljust(widths[k]) for k, _ in HEADERS))
+                lines.append("  " + "  ".join(row[k].ljust(widths[k]) for k, _ in heads))
         lines.extend(f"note: {w}" for w in self.warnings)
         return "\n".join(lines)
 

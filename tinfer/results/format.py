@@ -183,10 +183,18 @@ def pct(x: float, decimals: int = 1) -> str:
 def pct_decimals(low: float, high: float) -> int:
     """Decimals that show an interval's width (in percent) to two significant digits.
 
+    A limit that is not zero keeps enough decimals to show its sign.
+
     >>> pct_decimals(0.0121, 0.0687), pct_decimals(-0.3, 0.9), pct_decimals(0.0, 0.0004)
     (1, 0, 3)
+    >>> pct_decimals(-0.004, 0.105)
+    1
     """
     width = 100.0 * (high - low)
     if not (math.isfinite(width) and width > 0):
         return 1
-    return int(min(max(1 - math.floor(math.log10(width)), 0), 6))
+    d = int(min(max(1 - math.floor(math.log10(width)), 0), 6))
+    for v in (low, high):  # a limit that is not 0 never prints as 0: its sign must show
+        while 0 < abs(100.0 * v) < 0.5 * 10.0**-d and d < 6:
+            d += 1
+    return d

@@ -19,6 +19,41 @@ METHOD_NAMES = {
     "null": "the mean's interval divided by the reference value",
 }
 
+#: How the interval was found, in a one-line mention.
+SHORT_NAMES = {
+    "fieller": "by Fieller's theorem",
+    "log": "by the delta method on the log scale",
+    "null": "the mean's interval over the reference",
+}
+
+
+def lift_cell(lift: float, low: float, high: float, bounded: bool, label: str = "") -> str:
+    """A lift and its interval in percent: "+3.2% (+0.4% to +6.1%)"; decimals from the
+    interval's width; ``label`` (such as "95% CI ") goes before the limits.
+
+    >>> lift_cell(0.032, 0.004, 0.061, True), lift_cell(0.5, float("nan"), float("nan"), False)
+    ('+3.2% (+0.4% to +6.1%)', '+50.0% (interval unbounded)')
+    """
+    if not bounded or math.isnan(lift):
+        return f"{pct(lift)} (interval unbounded)" if not math.isnan(lift) else "–"
+    d = lift_decimals(lift, low, high)
+    if math.isinf(high):
+        inside = f"{label}{pct(low, d)} or more"
+    elif math.isinf(low):
+        inside = f"{label}{pct(high, d)} or less"
+    else:
+        inside = f"{label}{pct(low, d)} to {pct(high, d)}"
+    return f"{pct(lift, d)} ({inside})"
+
+
+def lift_decimals(lift: float, low: float, high: float) -> int:
+    """Decimals of a lift's percentages: its interval's width (or, one-sided, the distance
+    to the bound) to two significant digits."""
+    finite = [v for v in (low, high) if math.isfinite(v)]
+    if len(finite) == 2:
+        return pct_decimals(*finite)
+    return pct_decimals(0.0, abs(lift - finite[0]) if finite else 0.0)
+
 
 @dataclass(frozen=True, eq=False)
 class RelativeLift(Card):
@@ -81,11 +116,7 @@ class RelativeLift(Card):
     @property
     def decimals(self) -> int:
         """Decimals of the percentages: the interval's width to two significant digits."""
-        finite = [v for v in self.ci if math.isfinite(v)]
-        if len(finite) == 2:
-            return pct_decimals(*finite)
-        half = abs(self.lift - finite[0]) if finite else 0.0
-        return pct_decimals(0.0, half)
+        return lift_decimals(self.lift, *self.ci)
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -99,6 +130,15 @@ class RelativeLift(Card):
             "side": self.side,
             "df": self.df,
         }
+
+    def columns(self) -> dict[str, Any]:
+        """The lift's columns in a result's table: ``lift``, ``lift_low``, ``lift_high``."""
+        return {"lift": self.lift, "lift_low": self.ci[0], "lift_high": self.ci[1]}
+
+    @property
+    def short(self) -> str:
+        """The lift and its interval in percent, as a card's row shows them."""
+        return lift_cell(self.lift, *self.ci, self.bounded, f"{fmt_level(self.level)} CI ")
 
     def to_frame(self):
         import pandas as pd

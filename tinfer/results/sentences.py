@@ -10,6 +10,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 from .format import fmt_df, fmt_fixed, fmt_level, fmt_num, p_equals
+from .lift import SHORT_NAMES
 from .words import capital, interval_words
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -147,6 +148,12 @@ def text_lines(r: TResult) -> list[str]:
         lines.append(f"  {r.method}: {test_line(r)}")
         lines.append(f"  estimate {r.fmt(r.estimate)}, SE {fmt_num(r.se, r.decimals)}, {interval}")
     lines.append(f"  {r.effect}")
+    if r.lift is not None:
+        lift = r.lift
+        lines.append(
+            f"  relative change {lift.short}, {SHORT_NAMES[lift.method]}; "
+            f"{lift.reference} is the base"
+        )
     lines += ["  " + group_line(r, g, r.decimals) for g in r.groups]
     lines.extend(f"  note: {w}" for w in r.warnings)
     return lines

@@ -18,6 +18,7 @@ from . import provenance, sentences
 from .card import Card, Reported
 from .equivalence import Equivalence
 from .format import decimals_for, fmt_num
+from .lift import RelativeLift
 from .parts import Effect, GroupStats
 from .words import interval_words
 
@@ -79,6 +80,7 @@ class TResult(Reported, Card):
     created: str = field(default="", repr=False)
     equivalence: Equivalence | None = None
     trim: float = 0.0
+    lift: RelativeLift | None = None
 
     # ------------------------------------------------------------------ words
     @property
@@ -161,6 +163,7 @@ class TResult(Reported, Card):
             }
             | self._group_columns()
             | (self.equivalence.to_dict() if self.equivalence is not None else {})
+            | (self.lift.columns() if self.lift is not None else {})
         )
 
     def _group_columns(self) -> dict[str, Any]:

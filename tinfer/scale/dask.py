@@ -50,6 +50,7 @@ from ..frames import (
     experiment_checks,
     label_pair,
     metric_specs,
+    ratio_stats,
     removed_note,
 )
 from ..results import BatchResult, TResult
@@ -110,6 +111,7 @@ class TinferDaskAccessor:
         units: str | None = None,
         covariate: Hashable | None = None,
         ratio: Sequence | None = None,
+        relative: bool | str = False,
     ) -> TResult:
         """Two independent groups of ``column`` split by ``by`` (long form; Welch by default).
 
@@ -136,6 +138,7 @@ class TinferDaskAccessor:
         if ratio is not None:
             sums = tuple(ratio_summary(co.take(i)) for i in (first, second))
         elif covariate is not None:
+            _check_covariate(table, by, groups, covariate)
             adj = adjusted_arms(co.take(first), co.take(second))
             sums, notes = (adj.first, adj.second), [*notes, removed_note(adj, covariate)]
         else:
@@ -153,6 +156,7 @@ class TinferDaskAccessor:
             pooled=pooled,
             units=units,
             warnings=tuple(notes),
+            relative=relative,
         )
 
     def paired(
@@ -245,19 +249,22 @@ class TinferDaskAccessor:
         if by is not None and paired is not None:
             raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
         co = _comoments(table)
+        ratio_note = None
         if covariate is not None:
-            stats = table.drop(columns=["n", "mean", "mean_lo", "ssd", "mx", "sxx", "sxy"])
+            _check_covariate(table, by, groups, covariate)
+            stats = table.drop(columns=["n", "mean", "mean_lo", "ssd", *EXTRA])
             result = compare_moments(
                 stats, co, "covariate", keys, covariate=covariate, arm=by, groups=groups,
                 metric="metric", **opts,
             )  # fmt: skip
         else:
-            table = _ratio_rows(table, co, [n for n, _, kind in specs2 if kind == "ratio"])
+            ratio_names = [n for n, _, kind in specs2 if kind == "ratio"]
+            table, ratio_note = _ratio_rows(table, co, ratio_names)
             more: dict[str, Any] = {"arm": by, "groups": groups} if by is not None else {}
             if paired is not None:
                 more = {"paired": True, "labels": tuple(str(v) for v in specs2[0][1])}
             result = compare_summaries(table, within=keys, metric="metric", **more, **opts)
-        notes = list(result.warnings)
+        notes = list(result.warnings) + ([ratio_note] if ratio_note else [])
         if dropped:
             what = "segment key" if by is None else f"segment key or {by!r} value"
             notes.insert(0, f"{dropped} row(s) with a missing {what} were not used.")
@@ -272,12 +279,30 @@ class TinferDaskAccessor:
 def _ratio_rows(table, co: Comoments, ratio_names: list[str]):
     """The table with each ratio metric's row as the summary of its linearised values."""
     ratios = table["metric"].isin(ratio_names).to_numpy()
+    note = None
     if ratios.any():
-        r = ratio_summary(co)
-        table.loc[ratios, "mean"] = r.mean[ratios]
-        table.loc[ratios, "ssd"] = r.ssd[ratios]
+        n, mean, ssd, note = ratio_stats(co.take(ratios))
+        table.loc[ratios, "n"], table.loc[ratios, "mean"], table.loc[ratios, "ssd"] = n, mean, ssd
         table.loc[ratios, "mean_lo"] = 0.0
-    return table.drop(columns=["mx", "sxx", "sxy"], errors="ignore")
+    return table.drop(columns=list(EXTRA), errors="ignore"), note
+
+
+#: Columns of the merged table beyond the summaries.
+EXTRA = ("mx", "sxx", "sxy", "n_no_x")
+
+
+def _check_covariate(table, by, groups, covariate) -> None:
+    """A row of the compared arms with a value but no covariate is an error."""
+    levels = list(dict.fromkeys(table[by].tolist()))
+    first, second = choose_two(levels, by, groups, "two-sample comparison")
+    chosen = table[by].isin([levels[first], levels[second]]).to_numpy()
+    bad = int(table["n_no_x"].to_numpy()[chosen].sum())
+    if bad:
+        raise DataError(
+            f"{bad:,} row(s) in the compared groups have a value but no {covariate!r}. The "
+            "adjustment needs the pre-period value of every unit: fill it (for example with "
+            "the overall pre-period mean, a stated rule) or drop those rows."
+        )
 
 
 def _summary(row) -> Summary:

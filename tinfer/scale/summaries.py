@@ -15,13 +15,14 @@ import pandas as pd
 from ..core.comoments import Comoments, grouped_comoments
 from ..core.grouped import grouped_moments
 from ..core.summary import Summary, merge
-from ..errors import DataError
 from ..frames import combine_codes, key_codes, metric_values, missing_column
 
 METRIC = "__tinfer_metric__"
 STATS = ("__n__", "__mean__", "__lo__", "__ssd__", "__missing__")
 #: The extra co-moments of two-column metrics (a ratio, or a value with its covariate).
 CROSS = ("__mx__", "__sxx__", "__sxy__")
+#: Rows with a value but no covariate ("adjust" metrics): an error only in compared arms.
+NO_X = "__nox__"
 DROPPED = "__dropped__"
 
 # A metric spec: (name, columns, kind). kind "value" takes one column; "diff" takes
@@ -65,8 +66,9 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
     frames = []
     for j, (_, cols, kind) in enumerate(specs):
         out = {k: pdf[k].iloc[first_row].to_numpy() for k in keys}
+        no_x = np.zeros(n_groups)
         if kind in ("ratio", "adjust"):
-            co, fin = _pair_partial(pdf, cols, kind, ok, g, n_groups)
+            co, fin, no_x = _pair_partial(pdf, cols, kind, ok, g, n_groups)
             n, mean, lo, ssd = co.n, co.my, np.zeros(n_groups), co.syy
             cross = (co.mx, co.sxx, co.sxy)
         else:
@@ -78,6 +80,7 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
         out[METRIC] = np.full(n_groups, j, dtype=np.int64)
         out["__n__"], out["__mean__"], out["__lo__"], out["__ssd__"] = n, mean, lo, ssd
         out |= dict(zip(CROSS, cross, strict=True))
+        out[NO_X] = no_x
         out["__missing__"] = miss.astype(np.int64)
         out[DROPPED] = np.zeros(n_groups, dtype=np.int64)
         if j == 0 and n_groups:  # once per partition: the client sums this column
@@ -87,32 +90,29 @@ def partial_summaries(pdf: pd.DataFrame, keys: list, specs: list[Spec]) -> pd.Da
     if dropped and n_groups == 0:
         blank = pd.DataFrame({k: pd.Series([None], dtype=object) for k in keys})
         blank[METRIC] = -1
-        for c in STATS + CROSS:
+        for c in (*STATS, *CROSS, NO_X):
             blank[c] = 0.0 if c != "__missing__" else 0
         blank[DROPPED] = dropped
         table = pd.concat([table, blank], ignore_index=True)
     return table
 
 
-def _pair_partial(pdf, cols, kind, ok, g, n_groups) -> tuple[Comoments, np.ndarray]:
-    """Co-moments of (y, x) per group in one partition, and the rows used."""
+def _pair_partial(pdf, cols, kind, ok, g, n_groups):
+    """Co-moments of (y, x) per group in one partition, the rows used, and per group the
+    rows with y but no x (an "adjust" metric's covariate missing: the caller decides)."""
     y, x = (metric_values(pdf, (c,))[ok] for c in cols)
-    if kind == "adjust":
-        bad = ~np.isnan(y) & np.isnan(x)
-        if bad.any():
-            raise DataError(
-                f"{int(bad.sum()):,} row(s) have {cols[0]!r} but no {cols[1]!r}. The adjustment "
-                "needs the pre-period value of every unit: fill it (a stated rule) or drop them."
-            )
     fin = ~(np.isnan(y) | np.isnan(x))
-    return grouped_comoments(y[fin], x[fin], g[fin], n_groups), fin
+    no_x = np.zeros(n_groups)
+    if kind == "adjust":
+        no_x = np.bincount(g[~np.isnan(y) & np.isnan(x)], minlength=n_groups).astype(float)
+    return grouped_comoments(y[fin], x[fin], g[fin], n_groups), fin, no_x
 
 
 def _meta(ddf: dd.DataFrame, keys: list) -> pd.DataFrame:
     meta = {k: ddf._meta[k].iloc[:0] for k in keys}
     frame = pd.DataFrame({k: pd.Series(v.to_numpy(), dtype=v.dtype) for k, v in meta.items()})
     frame[METRIC] = pd.Series([], dtype=np.int64)
-    for c in ("__n__", "__mean__", "__lo__", "__ssd__", *CROSS):
+    for c in ("__n__", "__mean__", "__lo__", "__ssd__", *CROSS, NO_X):
         frame[c] = pd.Series([], dtype=np.float64)
     frame["__missing__"] = pd.Series([], dtype=np.int64)
     frame[DROPPED] = pd.Series([], dtype=np.int64)
@@ -186,6 +186,7 @@ def merged_summaries(ddf: dd.DataFrame, keys: list, specs: list[Spec]) -> tuple[
     out["ssd"] = s.ssd[:, 0]
     missing = np.bincount(gid, weights=table["__missing__"].to_numpy(), minlength=uniq.size)
     out["n_missing"] = missing.astype(np.int64)
+    out["n_no_x"] = np.bincount(gid, weights=table[NO_X].to_numpy(), minlength=uniq.size)
     if table[list(CROSS)].to_numpy().any():  # two-column metrics: merge their co-moments
         parts = [p_n, p_hi + p_lo, *(table[c].to_numpy()[order] for c in ("__mx__", "__ssd__"))]
         parts += [table[c].to_numpy()[order] for c in ("__sxx__", "__sxy__")]
