@@ -123,3 +123,14 @@ def test_relative_refuses_what_it_cannot_answer(shop, call):
     # common practice, no source: a lift needs two means (or a positive reference)
     with pytest.raises(tinfer.TinferError):
         call(shop)
+
+
+def test_report_tables_show_the_lift_only_where_asked(shop):
+    with_lift = shop.tinfer.two_sample("basket", by="arm", relative=True)
+    without = shop.tinfer.two_sample("basket", by="arm")
+    batch = shop.tinfer.compare("basket", by="arm", within="device", relative=True)
+    text = tinfer.table([with_lift, without, batch]).to_markdown()
+    assert "| relative change |" in text
+    # common practice, no source: the lift is the ratio of the two means minus one
+    assert with_lift.lift.short.replace("95% CI ", "").replace("−", "-") in text
+    assert "relative change" not in tinfer.table([without]).to_markdown()

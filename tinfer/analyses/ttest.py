@@ -109,6 +109,7 @@ def build(
     superior=False,
     trim=0.0,
     relative=False,
+    estimand: str = "mean",
 ) -> TResult:
     """Run the procedure for ``design`` on ``summaries`` and wrap the numbers in a TResult."""
     relative = check_relative(relative, func)
@@ -154,7 +155,7 @@ def build(
         effect=_effect(c, ROBUST_EFFECT if trim else EFFECT_NAMES[design], level),
         warnings=_notes(warnings, groups, nums["p"]), labels=labels,
         summaries=tuple(summaries), samples=samples, created=now_iso(), trim=trim,
-        equivalence=equivalence,
+        equivalence=equivalence, estimand=estimand,
     )  # fmt: skip
     if relative is not None:
         result = replace(result, lift=relative_lift_of(result, relative))
@@ -290,6 +291,7 @@ def rebuild(result: TResult, **changes) -> TResult:
         extra_groups=extra,
         samples=result.samples,
         warnings=kept,
+        estimand=result.estimand,
         **opts,
     )
     return new

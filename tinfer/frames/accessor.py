@@ -20,7 +20,7 @@ from ..results.ttest import TResult
 from . import ttest
 from .batch import compare_frame
 from .columns import one_column
-from .experiment import prepare
+from .experiment import long_two_sample
 from .pairwise import pairwise_frame
 
 Margin = float | tuple[float, float] | None
@@ -165,16 +165,8 @@ class TinferFrameAccessor:
             a, b = (one_column(self._obj, c) for c in column)
             variable = f"{column[0]} vs {column[1]}"
             return ttest.two_sample(a, b, variable, func="two_sample", **opts)
-        if column is None and ratio is None:
-            raise DataError("two_sample needs a value column (or ratio=).")
-        frame, column, notes = prepare(self._obj, column, by, groups, cluster, covariate, ratio)
-        a, b, no_key = ttest.two_groups(frame, column, by, groups)
-        if no_key:
-            notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)
-        if notes:
-            opts["warnings"] = notes
-        label = str(column) if covariate is None else f"{column} (adjusted for {covariate})"
-        return ttest.two_sample(a, b, label, func="two_sample", **opts)
+        experiment = dict(cluster=cluster, covariate=covariate, ratio=ratio)
+        return long_two_sample(self._obj, column, by, groups, experiment, opts)
 
     @fill_params(
         side=_PAIR_SIDE,

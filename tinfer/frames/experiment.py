@@ -14,6 +14,8 @@ import pandas as pd
 
 from ..core.comoments import Comoments, ratio_summary
 from ..errors import DataError
+from ..results.ttest import TResult
+from . import ttest
 from .batch import choose_arms
 from .cluster import per_unit_means
 from .columns import column, to_float
@@ -99,3 +101,20 @@ def prepare(
         frame, more = adjust(frame, value, by, covariate, groups)
         notes += more
     return frame, value, notes
+
+
+def long_two_sample(df, column, by, groups, experiment: dict, opts: dict) -> TResult:
+    """``two_sample`` on long data: the experiment steps, the split by ``by``, the test."""
+    cluster, covariate, ratio = (experiment[k] for k in ("cluster", "covariate", "ratio"))
+    if column is None and ratio is None:
+        raise DataError("two_sample needs a value column (or ratio=).")
+    frame, column, notes = prepare(df, column, by, groups, cluster, covariate, ratio)
+    a, b, no_key = ttest.two_groups(frame, column, by, groups)
+    if no_key:
+        notes += (f"{no_key} row(s) with a missing {by!r} value were not used.",)
+    if notes:
+        opts = opts | {"warnings": notes}
+    if ratio is not None:
+        opts = opts | {"estimand": "ratio"}
+    label = str(column) if covariate is None else f"{column} (adjusted for {covariate})"
+    return ttest.two_sample(a, b, label, func="two_sample", **opts)

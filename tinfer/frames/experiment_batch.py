@@ -70,10 +70,12 @@ def unit_frame(
     units = units.rename(columns=dict(zip(names[:-1], group_cols[:-1], strict=True)))
     if covariate is not None:
         units = units.rename(columns={"cov": covariate})
+    how = "averaged (ratio metrics: summed)" if sum_cols and mean_cols else "averaged"
+    how = "summed" if not mean_cols else how
     notes.insert(
         0,
-        f"Rows per {cluster!r} unit averaged (ratio metrics: summed): {len(frame):,} rows "
-        f"became {len(units):,} units, and the tests treat units, not rows, as independent.",
+        f"Rows {how} per {cluster!r} unit: {len(frame):,} rows became {len(units):,} units, "
+        "and the tests treat units, not rows, as independent.",
     )
     if lost:
         notes.append(f"{lost:,} row(s) with a missing {cluster!r} or segment key were not used.")

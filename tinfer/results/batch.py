@@ -217,7 +217,7 @@ class BatchResult(Card):
         data["effect"] = self.effect
         data["effect_ci_low"], data["effect_ci_high"] = self.effect_ci
         if self.relative is not None:
-            data |= {k: v for k, v in self._lift().items() if k != "lift_bounded"}
+            data |= {k: v for k, v in self.lifts().items() if k != "lift_bounded"}
         two = self.design == "two-sample"
         for arm in ("a", "b") if two else ("a",):
             suffix = f"_{arm}" if two else ""
@@ -274,8 +274,9 @@ class BatchResult(Card):
 
         return batch_lift(self, self.relative or "fieller")
 
-    def _lift(self) -> dict[str, np.ndarray]:
-        """The relative change of every row (``relative=`` in compare), computed once."""
+    def lifts(self) -> dict[str, np.ndarray]:
+        """The relative change of every row (``relative=`` in compare), computed once:
+        ``lift``, ``lift_low``, ``lift_high`` and ``lift_bounded``."""
         return self._lifts
 
     def top(self, k: int = 10) -> pd.DataFrame:
@@ -347,7 +348,7 @@ class BatchResult(Card):
             )
         if self.relative is not None:
             for i, row in zip(shown, rows, strict=True):
-                row["lift"] = lift_cell(*(float(v[i]) for v in self._lift().values()))
+                row["lift"] = lift_cell(*(float(v[i]) for v in self.lifts().values()))
         return rows
 
     def __str__(self) -> str:

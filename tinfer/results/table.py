@@ -15,12 +15,14 @@ import numpy as np
 
 from . import report
 from .format import column_decimals, fmt_df, fmt_fixed, fmt_level, fmt_num, fmt_p
+from .lift import lift_cell
 
 #: every column a report table can show, in order, with its header
 COLUMNS = {
     "comparison": "comparison",
     "estimate": "estimate",
     "ci": "CI",
+    "relative": "relative change",
     "t": "t",
     "df": "df",
     "p": "p",
@@ -81,6 +83,7 @@ def _row(comparison, est, lo, hi, t, df, p, padj, eff_name, eff, elo, ehi, n, de
         "effect": f"{symbol} = {fmt_num(eff, 2)}" if np.isfinite(eff) else "",
         "effect_ci": f"[{fmt_num(elo, 2)}, {fmt_num(ehi, 2)}]" if np.isfinite(eff) else "",
         "n": n,
+        "relative": "",
         "_numbers": dict(estimate=est, ci_low=lo, ci_high=hi, t=t, df=df, p=p, p_adjusted=padj),
     }
 
@@ -92,80 +95,98 @@ def _rows_of(r) -> tuple[list[dict], list[str]]:
     from .ttest import TResult
 
     if isinstance(r, TResult):
-        e = r.effect
-        n = ", ".join(str(g.n) for g in r.groups)
-        row = _row(
-            f"{r.variable}: {r.comparison}",
-            r.estimate,
-            *r.ci,
-            r.t,
-            r.df,
-            r.p,
-            None,
-            e.name,
-            e.value,
-            *e.ci,
-            n,
-            r.decimals,
-        )
-        return [row], [f"{r.method}, {fmt_level(r.level)} CI, {r.side}"]
+        return _single_rows(r)
     if isinstance(r, PairwiseResult):
-        frame = r.to_frame()
-        labels = r.pair_labels()
-        dec = column_decimals(r.se[np.isfinite(r.se)])
-        rows = []
-        for i in range(len(labels)):
-            rec = frame.iloc[i]
-            rows.append(
-                _row(
-                    f"{r.variable}: {labels[i]}",
-                    r.estimate[i],
-                    r.ci_low[i],
-                    r.ci_high[i],
-                    r.t[i],
-                    r.df[i],
-                    r.p_single[i],
-                    r.p_adjusted[i],
-                    "Hedges' g",
-                    rec["effect"],
-                    rec["effect_ci_low"],
-                    rec["effect_ci_high"],
-                    f"{int(rec['n_first'])}, {int(rec['n_second'])}",
-                    dec,
-                )
-            )
-        return rows, [f"{r.method_name}: {r.interval_kind}, p adjusted for the family"]
+        return _family_rows(r)
     if isinstance(r, BatchResult):
-        frame = r.to_frame()
-        idx = np.flatnonzero(r.testable)
-        dec = column_decimals(r.se[idx])
-        labels = r.segment_labels()
-        lo, hi = r.effect_ci
-        rows = []
-        for i in idx:
-            n = f"{int(r.n_a[i])}" + (f", {int(r.n_b[i])}" if r.design == "two-sample" else "")
-            rows.append(
-                _row(
-                    f"{frame['metric'].iloc[i]}: {labels[i]}",
-                    r.estimate[i],
-                    r.ci_low[i],
-                    r.ci_high[i],
-                    r.t[i],
-                    r.df[i],
-                    r.p[i],
-                    r.p_adjusted[i],
-                    r.effect_name,
-                    r.effect[i],
-                    lo[i],
-                    hi[i],
-                    n,
-                    dec,
-                )
-            )
-        return rows, [f"{r.method}, {fmt_level(r.level)} CI, {r.adjust_name} across the batch"]
+        return _batch_rows(r)
     raise TypeError(
         f"tinfer.table takes t results, batches and pairwise families; got {type(r).__name__}."
     )
+
+
+def _single_rows(r) -> tuple[list[dict], list[str]]:
+    e = r.effect
+    n = ", ".join(str(g.n) for g in r.groups)
+    row = _row(
+        f"{r.variable}: {r.comparison}",
+        r.estimate,
+        *r.ci,
+        r.t,
+        r.df,
+        r.p,
+        None,
+        e.name,
+        e.value,
+        *e.ci,
+        n,
+        r.decimals,
+    )
+    if r.lift is not None:
+        row["relative"] = lift_cell(r.lift.lift, *r.lift.ci, r.lift.bounded)
+    return [row], [f"{r.method}, {fmt_level(r.level)} CI, {r.side}"]
+
+
+def _family_rows(r) -> tuple[list[dict], list[str]]:
+    frame = r.to_frame()
+    labels = r.pair_labels()
+    dec = column_decimals(r.se[np.isfinite(r.se)])
+    rows = []
+    for i in range(len(labels)):
+        rec = frame.iloc[i]
+        rows.append(
+            _row(
+                f"{r.variable}: {labels[i]}",
+                r.estimate[i],
+                r.ci_low[i],
+                r.ci_high[i],
+                r.t[i],
+                r.df[i],
+                r.p_single[i],
+                r.p_adjusted[i],
+                "Hedges' g",
+                rec["effect"],
+                rec["effect_ci_low"],
+                rec["effect_ci_high"],
+                f"{int(rec['n_first'])}, {int(rec['n_second'])}",
+                dec,
+            )
+        )
+    return rows, [f"{r.method_name}: {r.interval_kind}, p adjusted for the family"]
+
+
+def _batch_rows(r) -> tuple[list[dict], list[str]]:
+    frame = r.to_frame()
+    idx = np.flatnonzero(r.testable)
+    dec = column_decimals(r.se[idx])
+    labels = r.segment_labels()
+    lo, hi = r.effect_ci
+    rows = []
+    for i in idx:
+        n = f"{int(r.n_a[i])}" + (f", {int(r.n_b[i])}" if r.design == "two-sample" else "")
+        rows.append(
+            _row(
+                f"{frame['metric'].iloc[i]}: {labels[i]}",
+                r.estimate[i],
+                r.ci_low[i],
+                r.ci_high[i],
+                r.t[i],
+                r.df[i],
+                r.p[i],
+                r.p_adjusted[i],
+                r.effect_name,
+                r.effect[i],
+                lo[i],
+                hi[i],
+                n,
+                dec,
+            )
+        )
+    if r.relative is not None:
+        lifts = r.lifts()
+        for i, row in zip(idx, rows, strict=True):
+            row["relative"] = lift_cell(*(float(v[i]) for v in lifts.values()))
+    return rows, [f"{r.method}, {fmt_level(r.level)} CI, {r.adjust_name} across the batch"]
 
 
 def table(results: Sequence[Any] | Any, columns: Sequence[str] | None = None) -> ReportTable:
@@ -177,9 +198,10 @@ def table(results: Sequence[Any] | Any, columns: Sequence[str] | None = None) ->
         :class:`~tinfer.TResult`, :class:`~tinfer.BatchResult` (its tested rows) and
         :class:`~tinfer.PairwiseResult` (one row per pair), in any mix.
     columns : sequence of str, optional
-        Which columns, in order, from ``comparison``, ``estimate``, ``ci``, ``t``, ``df``,
-        ``p``, ``p_adjusted``, ``effect``, ``effect_ci`` and ``n``. The default shows them
-        all, leaving out ``p_adjusted`` when no row has one.
+        Which columns, in order, from ``comparison``, ``estimate``, ``ci``, ``relative``
+        (the lift of results made with ``relative=``), ``t``, ``df``, ``p``, ``p_adjusted``,
+        ``effect``, ``effect_ci`` and ``n``. The default shows them all, leaving out
+        ``relative`` and ``p_adjusted`` when no row has one.
 
     Returns
     -------
@@ -209,7 +231,8 @@ def table(results: Sequence[Any] | Any, columns: Sequence[str] | None = None) ->
         rows += more
         notes += [n for n in note if n not in notes]
     if columns is None:
-        columns = [c for c in COLUMNS if c != "p_adjusted" or any(r["p_adjusted"] for r in rows)]
+        optional = ("p_adjusted", "relative")  # shown when some row has one
+        columns = [c for c in COLUMNS if c not in optional or any(r[c] for r in rows)]
     columns = list(columns)
     for c in columns:
         if c not in COLUMNS:

@@ -81,6 +81,7 @@ class TResult(Reported, Card):
     equivalence: Equivalence | None = None
     trim: float = 0.0
     lift: RelativeLift | None = None
+    estimand: str = "mean"
 
     # ------------------------------------------------------------------ words
     @property
@@ -97,8 +98,9 @@ class TResult(Reported, Card):
 
     @property
     def location(self) -> str:
-        """What is estimated: "mean" or, for Yuen's test, e.g. "20% trimmed mean"."""
-        return f"{self.trim * 100:g}% trimmed mean" if self.trim else "mean"
+        """What is estimated: "mean", "ratio" (a ratio metric's ratio of sums) or, for Yuen's
+        test, e.g. "20% trimmed mean"."""
+        return f"{self.trim * 100:g}% trimmed mean" if self.trim else self.estimand
 
     def _subject(self) -> str:
         if self.design == "one-sample":

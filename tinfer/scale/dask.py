@@ -157,6 +157,7 @@ class TinferDaskAccessor:
             units=units,
             warnings=tuple(notes),
             relative=relative,
+            estimand="ratio" if ratio is not None else "mean",
         )
 
     def paired(
