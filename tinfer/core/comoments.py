@@ -24,7 +24,6 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .grouped import grouped_moments
 from .summary import Summary
 
 #: The fields of :class:`Comoments`, in order.
@@ -116,9 +115,19 @@ class Comoments:
 
 
 def grouped_comoments(
-    y: np.ndarray, x: np.ndarray, codes: np.ndarray, n_groups: int, counts=None
-) -> Comoments:
+    y: np.ndarray,
+    x: np.ndarray,
+    codes: np.ndarray,
+    n_groups: int,
+    counts=None,
+    finite_only: bool = False,
+) -> Comoments | None:
     """Co-moments of finite ``y, x`` per integer code in ``[0, n_groups)``, by bincount.
+
+    The corrected two-pass algorithm of :func:`tinfer.core.grouped.grouped_moments` for a
+    pair: first means ``m0``, deviations ``dy, dx`` from them, then ``syy = sum dy^2 -
+    (sum dy)^2 / n`` and ``sxy = sum dx dy - sum dx sum dy / n``. With ``finite_only`` it
+    returns None as soon as the first pass shows a non-finite value (the caller masks).
 
     Examples
     --------
@@ -127,18 +136,40 @@ def grouped_comoments(
     >>> c.sxy.tolist(), c.mx.tolist()
     ([7.0, 0.0], [2.0, 7.0])
     """
-    codes = np.asarray(codes)
+    c = np.asarray(codes)
     if counts is None:
-        counts = np.bincount(codes, minlength=n_groups)
-    n, my, lo_y, syy = grouped_moments(y, codes, n_groups, counts)  # type: ignore[misc]
-    _, mx, lo_x, sxx = grouped_moments(x, codes, n_groups, counts)  # type: ignore[misc]
-    with np.errstate(invalid="ignore"):
-        my, mx = my + lo_y, mx + lo_x
-        dev = np.take(np.where(n > 0, my, 0.0), codes)
-        np.subtract(y, dev, out=dev)
-        dev *= x - np.take(np.where(n > 0, mx, 0.0), codes)
-    sxy = np.bincount(codes, weights=dev, minlength=n_groups)
-    return Comoments(n, my, mx, syy, sxx, sxy)
+        counts = np.bincount(c, minlength=n_groups)
+    n = counts.astype(np.float64)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        sum_y = np.bincount(c, weights=y, minlength=n_groups)
+        sum_x = np.bincount(c, weights=x, minlength=n_groups)
+        if finite_only and not (np.isfinite(sum_y).all() and np.isfinite(sum_x).all()):
+            return None
+        safe = np.where(n > 0, n, 1.0)
+        my0, mx0 = sum_y / safe, sum_x / safe
+        dy = np.take(my0, c)
+        np.subtract(y, dy, out=dy)
+        dx = np.take(mx0, c)
+        np.subtract(x, dx, out=dx)
+        s1y = np.bincount(c, weights=dy, minlength=n_groups)
+        s1x = np.bincount(c, weights=dx, minlength=n_groups)
+        sxy = np.bincount(c, weights=dx * dy, minlength=n_groups)
+        np.multiply(dy, dy, out=dy)
+        syy = np.bincount(c, weights=dy, minlength=n_groups)
+        np.multiply(dx, dx, out=dx)
+        sxx = np.bincount(c, weights=dx, minlength=n_groups)
+        del dx, dy
+        cy, cx = s1y / safe, s1x / safe
+        my = np.where(n > 0, my0 + cy, np.nan)
+        mx = np.where(n > 0, mx0 + cx, np.nan)
+        return Comoments(
+            n,
+            my,
+            mx,
+            np.maximum(syy - s1y * cy, 0.0),
+            np.maximum(sxx - s1x * cx, 0.0),
+            sxy - s1x * cy,
+        )
 
 
 def ratio_summary(c: Comoments) -> Summary:

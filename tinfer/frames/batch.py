@@ -139,8 +139,7 @@ def _moments(df, specs, g, key_ok, counts, n_groups) -> tuple[np.ndarray, ...]:
             co, use = pair_moments(df, cols, g, key_ok, n_groups)
             s = ratio_summary(co)
             n[j], mean[j], lo[j], ssd[j] = s.n, s.mean, 0.0, s.ssd
-            lost = ~use if key_ok is None else ~use & key_ok
-            miss[j] = np.bincount(g[lost], minlength=n_groups)
+            miss[j] = _lost(g, use, key_ok, n_groups)
             continue
         x = metric_values(df, cols, check_inf=False)
         xs = x if key_ok is None else x[key_ok]
@@ -228,6 +227,14 @@ def compare_frame(
     return result if lift is None else dataclasses.replace(result, relative=lift)
 
 
+def _lost(g, use, key_ok, n_groups) -> np.ndarray:
+    """Rows per group left out for a missing value (``use`` None: none)."""
+    if use is None:
+        return np.zeros(n_groups)
+    lost = ~use if key_ok is None else ~use & key_ok
+    return np.bincount(g[lost], minlength=n_groups)
+
+
 def _relative(relative, by, pairwise, against, func) -> str | None:
     lift = check_relative(relative, func)
     if lift is not None and (by is None or pairwise is not None or against is not None):
@@ -251,13 +258,15 @@ def _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func):
 def _adjusted(df, specs, covariate, arms: _Arms, key_ok, n_groups, cols, pick, notes):
     """n, mean, mean_lo, ssd, missing of the compared arms after the pre-period adjustment."""
     g = arms.codes
-    compared = np.isin(g % arms.width, cols) & (g >= 0)
+
+    def compared() -> np.ndarray:
+        return np.isin(g % arms.width, cols) & (g >= 0)
+
     fields, missing = [], []
     for _, (value,), _ in specs:
         check_covariate(df, value, covariate, compared)
         co, use = pair_moments(df, (value, covariate), g, key_ok, n_groups)
-        lost = ~use if key_ok is None else ~use & key_ok
-        missing.append(np.bincount(g[lost], minlength=n_groups))
+        missing.append(_lost(g, use, key_ok, n_groups))
         fields.append(co)
     co = Comoments(*(np.stack([getattr(c, f) for c in fields]) for f in FIELDS))
     picked = Comoments(*(pick(getattr(co, f)) for f in FIELDS))

@@ -85,22 +85,31 @@ def unit_frame(
 def pair_moments(
     df: pd.DataFrame, cols: tuple, g: np.ndarray, key_ok, n_groups: int
 ) -> tuple[Comoments, np.ndarray]:
-    """Co-moments per group of the rows where both columns are finite; and those rows."""
+    """Co-moments per group of the rows where both columns are finite; and those rows (None
+    when that is every row)."""
     y, x = (to_float(column(df, c), f"Column {c!r}") for c in cols)
+    if key_ok is None:  # the common case: one pass shows that every value is finite
+        co = grouped_comoments(y, x, g, n_groups, finite_only=True)
+        if co is not None:
+            return co, None
     reject_inf([y, x], cols)
     use = ~(np.isnan(y) | np.isnan(x))
     if key_ok is not None:
         use &= key_ok
-    if use.all():
-        return grouped_comoments(y, x, g, n_groups), use
     return grouped_comoments(y[use], x[use], g[use], n_groups), use
 
 
-def check_covariate(df, value, covariate, compared: np.ndarray) -> None:
-    """A row of the compared arms with a value but no covariate is an error."""
-    y = to_float(column(df, value), f"Column {value!r}")
+def check_covariate(df, value, covariate, compared) -> None:
+    """A row of the compared arms with a value but no covariate is an error.
+
+    ``compared`` is a function giving the mask of rows in the compared arms (only built
+    when some covariate is missing)."""
     x = to_float(column(df, covariate), f"Column {covariate!r}")
-    bad = compared & ~np.isnan(y) & np.isnan(x)
+    missing = np.isnan(x)
+    if not missing.any():
+        return
+    y = to_float(column(df, value), f"Column {value!r}")
+    bad = compared() & ~np.isnan(y) & missing
     if bad.any():
         raise DataError(
             f"{int(bad.sum()):,} row(s) in the compared groups have {value!r} but no "
