@@ -11,7 +11,7 @@ from .batch import choose_arms
 from .batch_sums import compare_moments, compare_sums, ratio_stats
 from .batch_table import compare_summaries
 from .columns import column, metric_values, missing_column, to_float
-from .experiment_batch import experiment_checks, removed_note
+from .experiment_batch import experiment_checks, removed_note, unit_note
 from .levels import (
     as_list,
     choose_two,
@@ -48,4 +48,5 @@ __all__ = [
     "ratio_stats",
     "removed_note",
     "to_float",
+    "unit_note",
 ]

@@ -70,16 +70,20 @@ def unit_frame(
     units = units.rename(columns=dict(zip(names[:-1], group_cols[:-1], strict=True)))
     if covariate is not None:
         units = units.rename(columns={"cov": covariate})
-    how = "averaged (ratio metrics: summed)" if sum_cols and mean_cols else "averaged"
-    how = "summed" if not mean_cols else how
-    notes.insert(
-        0,
-        f"Rows {how} per {cluster!r} unit: {len(frame):,} rows became {len(units):,} units, "
-        "and the tests treat units, not rows, as independent.",
-    )
+    notes.insert(0, unit_note(cluster, len(frame), len(units), bool(mean_cols), bool(sum_cols)))
     if lost:
         notes.append(f"{lost:,} row(s) with a missing {cluster!r} or segment key were not used.")
     return units, new_specs, notes
+
+
+def unit_note(cluster, rows: int, units: int, averaged: bool, summed: bool) -> str:
+    """The note on how many rows became how many units."""
+    how = "averaged (ratio metrics: summed)" if averaged and summed else "averaged"
+    how = "summed" if not averaged else how
+    return (
+        f"Rows {how} per {cluster!r} unit: {rows:,} rows became {units:,} units, and the "
+        "tests treat units, not rows, as independent."
+    )
 
 
 def pair_moments(

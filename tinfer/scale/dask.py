@@ -55,6 +55,7 @@ from ..frames import (
 )
 from ..results import BatchResult, TResult
 from .summaries import METRIC, merged_summaries, partial_summaries, summary_of
+from .units import unit_rows
 
 
 @register_dataframe_accessor("tinfer")
@@ -112,11 +113,12 @@ class TinferDaskAccessor:
         covariate: Hashable | None = None,
         ratio: Sequence | None = None,
         relative: bool | str = False,
+        cluster: Hashable | None = None,
     ) -> TResult:
         """Two independent groups of ``column`` split by ``by`` (long form; Welch by default).
 
-        See ``DataFrame.tinfer.two_sample``; ``ratio=`` and ``covariate=`` work as there, from
-        co-moments merged exactly across partitions (``cluster=``: aggregate per unit first).
+        See ``DataFrame.tinfer.two_sample``; ``cluster=``, ``ratio=`` and ``covariate=`` work
+        as there (see ``compare`` for how), from co-moments merged exactly across partitions.
         """
         if by is None or (column is None) == (ratio is None):
             raise DataError("two_sample on Dask needs by= and either a value column or ratio=.")
@@ -127,14 +129,17 @@ class TinferDaskAccessor:
         if ratio is not None:
             spec = metric_specs(None, None, "two_sample", tuple(ratio))[0]
             variable = spec[0]
-        elif covariate is not None:
-            spec = (variable, (column, covariate), "adjust")
+        data, notes, cov = self._obj, [], covariate
+        if cluster is not None:
+            data, [spec], cov, notes = unit_rows(data, [], by, cluster, [spec], covariate)
+        if covariate is not None:
+            spec = (variable, (spec[1][0], cov), "adjust")
             variable = f"{column} (adjusted for {covariate})"
-        table, no_key = merged_summaries(self._obj, [by], [spec])
+        table, no_key = merged_summaries(data, [by], [spec])
         levels = table[by].to_numpy(dtype=object)
         first, second = choose_two(list(levels), by, groups, "two-sample comparison")
         co = _comoments(table)
-        notes = [f"{no_key} row(s) with a missing {by!r} value were not used."] if no_key else []
+        notes += [f"{no_key} row(s) with a missing {by!r} value were not used."] if no_key else []
         if ratio is not None:
             sums = tuple(ratio_summary(co.take(i)) for i in (first, second))
         elif covariate is not None:
@@ -208,12 +213,14 @@ class TinferDaskAccessor:
         pooled: bool = False,
         covariate: Hashable | None = None,
         ratio: Sequence | None = None,
+        cluster: Hashable | None = None,
     ) -> BatchResult:
         """Many tests at once; see ``DataFrame.tinfer.compare`` (same options, same result).
 
         ``ratio=`` and ``covariate=`` work as there, from co-moments merged exactly across
-        partitions. ``cluster=`` is not offered: aggregate the rows per unit first, e.g.
-        ``ddf.groupby(["segment", "arm", "visitor"]).sum().reset_index()``.
+        partitions. ``cluster=`` averages (sums, for ratios) each unit's rows with a Dask
+        groupby; the unit table, one row per segment, arm and unit, then comes to the client
+        once to leave out units found in both arms.
 
         Examples
         --------
@@ -235,9 +242,12 @@ class TinferDaskAccessor:
         keys = as_list(within)
         check_roles(keys, by, specs2, func)
         experiment_checks(func, by, paired, None, covariate, specs2)
-        specs = [(n, (*c, covariate), "adjust") for n, c, _ in specs2] if covariate else specs2
+        data, unit_notes, cov = self._obj, [], covariate
+        if cluster is not None:
+            data, specs2, cov, unit_notes = unit_rows(data, keys, by, cluster, specs2, covariate)
+        specs = [(n, (*c, cov), "adjust") for n, c, _ in specs2] if covariate else specs2
         all_keys = keys + ([by] if by is not None else [])
-        table, dropped = merged_summaries(self._obj, all_keys, specs)
+        table, dropped = merged_summaries(data, all_keys, specs)
         if table.empty:
             raise DataError(
                 "The Dask DataFrame has no rows with values to compare: every partition is "
@@ -265,7 +275,7 @@ class TinferDaskAccessor:
             if paired is not None:
                 more = {"paired": True, "labels": tuple(str(v) for v in specs2[0][1])}
             result = compare_summaries(table, within=keys, metric="metric", **more, **opts)
-        notes = list(result.warnings) + ([ratio_note] if ratio_note else [])
+        notes = unit_notes + list(result.warnings) + ([ratio_note] if ratio_note else [])
         if dropped:
             what = "segment key" if by is None else f"segment key or {by!r} value"
             notes.insert(0, f"{dropped} row(s) with a missing {what} were not used.")

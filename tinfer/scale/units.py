@@ -1,0 +1,81 @@
+"""One row per unit of randomisation on Dask: ``cluster=`` for the Dask accessor.
+
+A Dask groupby on (segments, arm, unit) averages each unit's values (and its covariate) and
+sums the two columns of a ratio metric, on the workers. The unit table (one row per segment,
+arm and unit) comes to the client once, to leave out units found in both arms, and goes
+back as a Dask DataFrame through the same co-moment merge as rows do, so the answer equals
+the pandas accessor's.
+"""
+
+from __future__ import annotations
+
+import dask
+import dask.dataframe as dd
+import numpy as np
+
+from ..errors import ParameterError
+from ..frames import missing_column, unit_note
+
+Spec = tuple[str, tuple, str]
+
+
+def unit_rows(
+    ddf: dd.DataFrame, keys: list, by, cluster, specs: list[Spec], covariate
+) -> tuple[dd.DataFrame, list[Spec], object, list[str]]:
+    """The unit table, specs that read it, the covariate's column in it, and the notes."""
+    names = [*keys, *([by] if by is not None else []), cluster, covariate]
+    names += [c for _, cols, _ in specs for c in cols]
+    for c in names:
+        if c is not None and c not in ddf.columns:
+            raise missing_column(c, ddf.columns)
+    if cluster in (*keys, by, covariate) or any(cluster in cols for _, cols, _ in specs):
+        raise ParameterError(f"cluster={cluster!r} must be a column of its own.")
+    group = [*keys, *([by] if by is not None else []), cluster]
+    data = ddf[group]
+    how: dict[str, str] = {}
+    new_specs: list[Spec] = []
+    for j, (name, cols, kind) in enumerate(specs):
+        if kind == "ratio":
+            y, x = ddf[cols[0]].astype(float), ddf[cols[1]].astype(float)
+            both = y.notnull() & x.notnull()
+            data = data.assign(**{f"n{j}": y.where(both), f"d{j}": x.where(both)})
+            data = data.assign(**{f"c{j}": both.astype(float)})
+            how |= {f"n{j}": "sum", f"d{j}": "sum", f"c{j}": "sum"}
+            new_specs.append((name, (f"n{j}", f"d{j}"), kind))
+        else:
+            data = data.assign(**{f"v{j}": ddf[cols[0]].astype(float)})
+            how[f"v{j}"] = "mean"
+            new_specs.append((name, (f"v{j}", *cols[1:]), kind))
+    cov_name = None
+    if covariate is not None:
+        data = data.assign(__cov=ddf[covariate].astype(float))
+        how["__cov"] = "mean"
+        cov_name = "__cov"
+    data = data.assign(__rows=1.0)
+    how["__rows"] = "sum"
+    units = data.groupby(group).agg(how).reset_index()
+    for j, (_, _, kind) in enumerate(specs):
+        if kind == "ratio":  # a unit with no complete row has no sums (pandas: min_count=1)
+            empty = units[f"c{j}"] == 0
+            units = units.assign(
+                **{f"n{j}": units[f"n{j}"].mask(empty), f"d{j}": units[f"d{j}"].mask(empty)}
+            )
+    notes = []
+    if by is not None:
+        arms = units.groupby(cluster)[by].nunique()
+        both_arms = arms[arms > 1].index
+        units, both = dask.compute(units, both_arms)
+        if len(both):
+            units = units[~units[cluster].isin(list(both))]
+            notes.append(
+                f"{len(both):,} unit(s) of {cluster!r} appear in both groups (a data error: a "
+                "unit is randomised once); their rows were left out."
+            )
+    else:
+        units = units.compute()
+    kinds = [kind for _, _, kind in specs]
+    averaged = covariate is not None or any(k != "ratio" for k in kinds)
+    rows = int(units["__rows"].sum())
+    notes.insert(0, unit_note(cluster, rows, len(units), averaged, "ratio" in kinds))
+    parts = max(1, min(ddf.npartitions, int(np.ceil(len(units) / 1_000_000))))
+    return dd.from_pandas(units, npartitions=parts), new_specs, cov_name, notes
