@@ -605,3 +605,21 @@ def test_dask_cluster_equals_pandas_cluster(dd, opts):
     single = ddf.tinfer.two_sample(by="arm", groups=GROUPS, cluster="visitor", **one)
     seg = df.tinfer.two_sample(by="arm", groups=GROUPS, cluster="visitor", **one)
     _assert_stats(single, seg, rel=1e-9)
+
+
+def test_cluster_keeps_segment_names_that_look_like_its_own_columns():
+    df = _days()
+    df["__tv0"] = df["country"]  # a segment column named like a column of the unit table
+    ref = df.tinfer.compare("basket", by="arm", within="country", groups=GROUPS, cluster="visitor")
+    got = df.tinfer.compare("basket", by="arm", within="__tv0", groups=GROUPS, cluster="visitor")
+    # reference: the same segments under their ordinary name
+    np.testing.assert_allclose(got.estimate, ref.estimate, rtol=1e-15)
+    assert list(got.to_frame()["__tv0"]) == list(ref.to_frame()["country"])
+
+
+def test_covariate_must_be_a_column_of_its_own():
+    df = _visitors()
+    # common practice, no source: a column cannot adjust itself or split the rows it adjusts
+    for opts in ({"covariate": "spend"}, {"covariate": "country"}):
+        with pytest.raises(tinfer.ParameterError, match="covariate="):
+            df.tinfer.compare("spend", by="arm", within="country", groups=GROUPS, **opts)

@@ -140,6 +140,8 @@ def build(
         if design == "one-sample":
             comparison = f"{trim * 100:g}% trimmed mean of {variable}"
     nums = _numbers(c)
+    if estimand == "ratio":
+        method = f"{method}, delta method for the ratios"
     equivalence = None
     if margin_spec is not None:
         words = dict(labels=labels, comparison=comparison, units=units, func=func)

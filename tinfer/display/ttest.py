@@ -133,6 +133,8 @@ def groups_table(result: TResult) -> str:
     """
     trimmed = result.trim > 0
     names = ("trimmed mean", "winsorised SD", "SE") if trimmed else ("mean", "SD", "SE")
+    if result.estimand == "ratio":  # each group's ratio of sums; SD of the linearised values
+        names = ("ratio", "SD (linearised)", "SE")
     d = result.decimals
     head_cells = "".join(
         f'<th scope="col" class="tinfer-num">{h}</th>' for h in ("n", "missing", *names)

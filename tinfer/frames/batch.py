@@ -249,9 +249,12 @@ def _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func):
     for k in keys:
         column(df, k)
     check_roles(keys, by, specs, func)
+    values = {c for _, cols, _ in specs for c in cols}
     if by is not None and paired is not None:
         raise ParameterError(f"{func} takes by= (two groups) or paired=, not both.")
     experiment_checks(func, by, paired, pairwise, covariate, specs)
+    if covariate is not None and (covariate in keys or covariate == by or covariate in values):
+        raise ParameterError(f"covariate={covariate!r} must be a column of its own in {func}.")
     return specs, keys
 
 

@@ -69,7 +69,7 @@ def linearise(
     notes = (
         f"Ratio metric {ratio_label(ratio)}: each group's sum of {num!r} over its sum of "
         f"{den!r}, with the delta-method standard error (Deng, Knoblich and Lu 2018) and "
-        "Welch-type df.",
+        "Welch-type df; a group's SD is that of its units' linearised values.",
     )
     lost = int((~ok & (codes >= 0)).sum())
     if lost:

@@ -29,22 +29,26 @@ def unit_frame(
     if cluster in (*keys, by, covariate) or any(cluster in cols for _, cols, _ in specs):
         raise ParameterError(f"cluster={cluster!r} must be a column of its own.")
     group_cols = [*keys, *([by] if by is not None else []), cluster]
-    data = {f"k{i}": column(df, c).to_numpy() for i, c in enumerate(group_cols)}
+    t = "__t"  # a prefix for the frame's own columns that no kept column name starts with
+    while any(str(c).startswith(t) for c in (*group_cols, covariate)):
+        t += "_"
+    data = {f"{t}k{i}": column(df, c).to_numpy() for i, c in enumerate(group_cols)}
     mean_cols, sum_cols, new_specs = [], [], []
     for j, (name, cols, kind) in enumerate(specs):
         if kind == "ratio":
             y, x = (to_float(column(df, c), f"Column {c!r}") for c in cols)
             both = ~(np.isnan(y) | np.isnan(x))
-            data[f"n{j}"], data[f"d{j}"] = np.where(both, y, np.nan), np.where(both, x, np.nan)
-            sum_cols += [f"n{j}", f"d{j}"]
-            new_specs.append((name, (f"n{j}", f"d{j}"), kind))
+            data[f"{t}n{j}"] = np.where(both, y, np.nan)
+            data[f"{t}d{j}"] = np.where(both, x, np.nan)
+            sum_cols += [f"{t}n{j}", f"{t}d{j}"]
+            new_specs.append((name, (f"{t}n{j}", f"{t}d{j}"), kind))
         else:
-            data[f"v{j}"] = to_float(column(df, cols[0]), f"Column {cols[0]!r}")
-            mean_cols.append(f"v{j}")
-            new_specs.append((name, (f"v{j}",), kind))
+            data[f"{t}v{j}"] = to_float(column(df, cols[0]), f"Column {cols[0]!r}")
+            mean_cols.append(f"{t}v{j}")
+            new_specs.append((name, (f"{t}v{j}",), kind))
     if covariate is not None:
-        data["cov"] = to_float(column(df, covariate), f"Column {covariate!r}")
-        mean_cols.append("cov")
+        data[f"{t}cov"] = to_float(column(df, covariate), f"Column {covariate!r}")
+        mean_cols.append(f"{t}cov")
     frame = pd.DataFrame(data)
     names = list(data)[: len(group_cols)]
     unit = names[-1]
@@ -69,7 +73,7 @@ def unit_frame(
     units = pd.concat(parts, axis=1).reset_index()
     units = units.rename(columns=dict(zip(names[:-1], group_cols[:-1], strict=True)))
     if covariate is not None:
-        units = units.rename(columns={"cov": covariate})
+        units = units.rename(columns={f"{t}cov": covariate})
     notes.insert(0, unit_note(cluster, len(frame), len(units), bool(mean_cols), bool(sum_cols)))
     if lost:
         notes.append(f"{lost:,} row(s) with a missing {cluster!r} or segment key were not used.")

@@ -31,6 +31,9 @@ def unit_rows(
     if cluster in (*keys, by, covariate) or any(cluster in cols for _, cols, _ in specs):
         raise ParameterError(f"cluster={cluster!r} must be a column of its own.")
     group = [*keys, *([by] if by is not None else []), cluster]
+    t = "__t"  # a prefix for the table's own columns that no kept column name starts with
+    while any(str(c).startswith(t) for c in group):
+        t += "_"
     data = ddf[group]
     how: dict[str, str] = {}
     new_specs: list[Spec] = []
@@ -38,28 +41,27 @@ def unit_rows(
         if kind == "ratio":
             y, x = ddf[cols[0]].astype(float), ddf[cols[1]].astype(float)
             both = y.notnull() & x.notnull()
-            data = data.assign(**{f"n{j}": y.where(both), f"d{j}": x.where(both)})
-            data = data.assign(**{f"c{j}": both.astype(float)})
-            how |= {f"n{j}": "sum", f"d{j}": "sum", f"c{j}": "sum"}
-            new_specs.append((name, (f"n{j}", f"d{j}"), kind))
+            data = data.assign(**{f"{t}n{j}": y.where(both), f"{t}d{j}": x.where(both)})
+            data = data.assign(**{f"{t}c{j}": both.astype(float)})
+            how |= {f"{t}n{j}": "sum", f"{t}d{j}": "sum", f"{t}c{j}": "sum"}
+            new_specs.append((name, (f"{t}n{j}", f"{t}d{j}"), kind))
         else:
-            data = data.assign(**{f"v{j}": ddf[cols[0]].astype(float)})
-            how[f"v{j}"] = "mean"
-            new_specs.append((name, (f"v{j}", *cols[1:]), kind))
+            data = data.assign(**{f"{t}v{j}": ddf[cols[0]].astype(float)})
+            how[f"{t}v{j}"] = "mean"
+            new_specs.append((name, (f"{t}v{j}", *cols[1:]), kind))
     cov_name = None
     if covariate is not None:
-        data = data.assign(__cov=ddf[covariate].astype(float))
-        how["__cov"] = "mean"
-        cov_name = "__cov"
-    data = data.assign(__rows=1.0)
-    how["__rows"] = "sum"
+        data = data.assign(**{f"{t}cov": ddf[covariate].astype(float)})
+        how[f"{t}cov"] = "mean"
+        cov_name = f"{t}cov"
+    data = data.assign(**{f"{t}rows": 1.0})
+    how[f"{t}rows"] = "sum"
     units = data.groupby(group).agg(how).reset_index()
     for j, (_, _, kind) in enumerate(specs):
         if kind == "ratio":  # a unit with no complete row has no sums (pandas: min_count=1)
-            empty = units[f"c{j}"] == 0
-            units = units.assign(
-                **{f"n{j}": units[f"n{j}"].mask(empty), f"d{j}": units[f"d{j}"].mask(empty)}
-            )
+            empty = units[f"{t}c{j}"] == 0
+            num, den = f"{t}n{j}", f"{t}d{j}"
+            units = units.assign(**{num: units[num].mask(empty), den: units[den].mask(empty)})
     notes = []
     if by is not None:
         arms = units.groupby(cluster)[by].nunique()
@@ -75,7 +77,7 @@ def unit_rows(
         units = units.compute()
     kinds = [kind for _, _, kind in specs]
     averaged = covariate is not None or any(k != "ratio" for k in kinds)
-    rows = int(units["__rows"].sum())
+    rows = int(units[f"{t}rows"].sum())
     notes.insert(0, unit_note(cluster, rows, len(units), averaged, "ratio" in kinds))
     parts = max(1, min(ddf.npartitions, int(np.ceil(len(units) / 1_000_000))))
     return dd.from_pandas(units, npartitions=parts), new_specs, cov_name, notes
