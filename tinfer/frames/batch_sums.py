@@ -31,7 +31,10 @@ CROSS = ("sum_x", "sum_x_sq", "sum_xy")
 USES = ("mean", "ratio", "covariate")
 
 
-@fill_params(side="the true difference differs from, is greater than, or is less than ``null``.")
+@fill_params(
+    side="the true difference differs from, is greater than, or is less than ``null``.",
+    relative_what="(the first arm's mean, ratio or adjusted mean over the second's)",
+)
 def compare_sums(
     frame: pd.DataFrame,
     within=None,
@@ -47,6 +50,7 @@ def compare_sums(
     level: float = 0.95,
     side: str = "two-sided",
     pooled: bool = False,
+    relative: bool | str = False,
 ):
     """Many t tests from per-segment raw sums: plain metrics, ratio metrics, or adjusted.
 
@@ -80,6 +84,7 @@ def compare_sums(
     null : float, default 0
         Hypothesised mean or difference.
     {batch_options}
+    {relative}
 
     Returns
     -------
@@ -120,6 +125,7 @@ def compare_sums(
     return compare_moments(
         table, co, use, within, arm=arm, groups=groups, metric=metric, labels=labels,
         null=null, adjust=adjust, rate=rate, level=level, side=side, pooled=pooled,
+        relative=relative,
     )  # fmt: skip
 
 

@@ -8,13 +8,14 @@ merged from its partitions.
 
 from __future__ import annotations
 
+import dataclasses
 from collections.abc import Hashable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
-from ..analyses import check_options, from_cube
+from ..analyses import check_options, check_relative, from_cube
 from ..checks import shown, summary_problem
 from ..docstrings import fill_params
 from ..errors import DataError, ParameterError
@@ -27,7 +28,10 @@ STAT_NAMES = ("n", "mean", "sd", "ssd", "mean_lo")
 FUNC = "compare_summaries"
 
 
-@fill_params(side="the true difference differs from, is greater than, or is less than ``null``.")
+@fill_params(
+    side="the true difference differs from, is greater than, or is less than ``null``.",
+    relative_what="(arm a's mean over arm b's, in every row)",
+)
 def compare_summaries(
     frame: pd.DataFrame,
     within=None,
@@ -43,6 +47,7 @@ def compare_summaries(
     level: float = 0.95,
     side: str = "two-sided",
     pooled: bool = False,
+    relative: bool | str = False,
 ) -> BatchResult:
     """Many t tests from a table of per-segment summaries, as a SQL query returns them.
 
@@ -80,6 +85,7 @@ def compare_summaries(
     null : float, default 0
         Hypothesised mean, difference or paired difference.
     {batch_options}
+    {relative}
 
     Returns
     -------
@@ -98,6 +104,7 @@ def compare_summaries(
     options = check_options(
         FUNC, adjust=adjust, rate=rate, level=level, side=side, null=null, pooled=pooled
     )
+    lift = check_relative(relative, FUNC)
     if not isinstance(frame, pd.DataFrame):
         raise ParameterError(
             f"The 'frame' parameter of {FUNC} must be a pandas DataFrame of summaries. "
@@ -144,7 +151,9 @@ def compare_summaries(
             f"The 'labels' parameter of {FUNC} must be two names (first, second). "
             f"Got {labels!r} instead."
         )
-    return from_cube(
+    if lift is not None and design != "two-sample":
+        raise ParameterError(f"relative= of {FUNC} needs two arms (arm=, or the wide layout).")
+    result = from_cube(
         design,
         cube.n,
         cube.mean,
@@ -157,6 +166,7 @@ def compare_summaries(
         options=options,
         mean_lo=cube.lo,
     )
+    return result if lift is None else dataclasses.replace(result, relative=lift)
 
 
 def _place_arms(cube: _Cube, arm, groups, labels) -> tuple[str, ...]:

@@ -214,6 +214,7 @@ class TinferDaskAccessor:
         covariate: Hashable | None = None,
         ratio: Sequence | None = None,
         cluster: Hashable | None = None,
+        relative: bool | str = False,
     ) -> BatchResult:
         """Many tests at once; see ``DataFrame.tinfer.compare`` (same options, same result).
 
@@ -238,6 +239,7 @@ class TinferDaskAccessor:
         options = check_options(
             func, adjust=adjust, rate=rate, level=level, side=side, null=null, pooled=pooled
         )
+        options["relative"] = relative
         specs2 = metric_specs(columns, paired, func, ratio)
         keys = as_list(within)
         check_roles(keys, by, specs2, func)
