@@ -154,18 +154,10 @@ def compare_summaries(
     if lift is not None and design != "two-sample":
         raise ParameterError(f"relative= of {FUNC} needs two arms (arm=, or the wide layout).")
     result = from_cube(
-        design,
-        cube.n,
-        cube.mean,
-        cube.ssd,
-        present=cube.present,
-        segments=segments,
-        keys=[str(k) for k in keys],
-        metrics=[str(m) for m in m_levels],
-        labels=labs,
-        options=options,
-        mean_lo=cube.lo,
-    )
+        design, cube.n, cube.mean, cube.ssd, present=cube.present, segments=segments,
+        keys=[str(k) for k in keys], metrics=[str(m) for m in m_levels], labels=labs,
+        options=options, mean_lo=cube.lo,
+    )  # fmt: skip
     return result if lift is None else dataclasses.replace(result, relative=lift)
 
 
