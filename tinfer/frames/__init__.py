@@ -10,6 +10,7 @@ from .accessor import TinferFrameAccessor
 from .batch import choose_arms
 from .batch_sums import compare_moments, compare_sums, ratio_stats
 from .batch_table import compare_summaries
+from .cluster import both_arms_note
 from .columns import column, metric_values, missing_column, to_float
 from .experiment_batch import experiment_checks, removed_note, unit_note
 from .levels import (
@@ -28,6 +29,7 @@ __all__ = [
     "TinferFrameAccessor",
     "TinferSeriesAccessor",
     "as_list",
+    "both_arms_note",
     "check_result_names",
     "check_roles",
     "choose_arms",

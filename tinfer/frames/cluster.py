@@ -67,10 +67,7 @@ def per_unit_means(
         "the test treats units, not rows, as independent."
     ]
     if len(both):
-        notes.append(
-            f"{len(both):,} unit(s) of {cluster!r} appear in both groups (a data error: a unit "
-            "is randomised once); their rows were left out."
-        )
+        notes.append(both_arms_note(len(both), cluster))
     if no_unit:
         notes.append(f"{no_unit:,} row(s) with a missing {cluster!r} were not used.")
     no_value = int((~usable).sum())
@@ -81,3 +78,11 @@ def per_unit_means(
     for i, name in enumerate(extra):
         out[name] = means[f"x{i}"].to_numpy()
     return out, tuple(notes)
+
+
+def both_arms_note(count: int, cluster) -> str:
+    """The note on units found in more than one group (left out)."""
+    return (
+        f"{count:,} unit(s) of {cluster!r} appear in more than one group (a data error: a unit "
+        "is randomised once); their rows were left out."
+    )

@@ -17,6 +17,7 @@ import pandas as pd
 
 from ..core.comoments import Adjusted, Comoments, adjusted_arms, grouped_comoments
 from ..errors import DataError, ParameterError
+from .cluster import both_arms_note
 from .columns import column, reject_inf, to_float
 
 Spec = tuple[str, tuple, str]
@@ -60,10 +61,7 @@ def unit_frame(
         both = arms.index[arms > 1]
         if len(both):
             frame = frame[~frame[unit].isin(both)]
-            notes.append(
-                f"{len(both):,} unit(s) of {cluster!r} appear in both groups (a data error: a "
-                "unit is randomised once); their rows were left out."
-            )
+            notes.append(both_arms_note(len(both), cluster))
     grouped = frame.groupby(names, sort=False, observed=True)
     parts = []
     if mean_cols:

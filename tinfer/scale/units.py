@@ -14,7 +14,7 @@ import dask.dataframe as dd
 import numpy as np
 
 from ..errors import ParameterError
-from ..frames import missing_column, unit_note
+from ..frames import both_arms_note, missing_column, unit_note
 
 Spec = tuple[str, tuple, str]
 
@@ -69,10 +69,7 @@ def unit_rows(
         units, both = dask.compute(units, both_arms)
         if len(both):
             units = units[~units[cluster].isin(list(both))]
-            notes.append(
-                f"{len(both):,} unit(s) of {cluster!r} appear in both groups (a data error: a "
-                "unit is randomised once); their rows were left out."
-            )
+            notes.append(both_arms_note(len(both), cluster))
     else:
         units = units.compute()
     kinds = [kind for _, _, kind in specs]
