@@ -46,7 +46,9 @@ def test_units_in_both_groups_are_left_out_and_counted():
     both = pd.concat([orders, bad], ignore_index=True)
     r = both.tinfer.two_sample("basket", by="checkout", groups=("new", "old"), cluster="visitor")
     n_bad = bad["visitor"].nunique()
-    assert any(f"{n_bad} unit(s) of 'visitor' appear in more than one group" in w for w in r.warnings)
+    assert any(
+        f"{n_bad} unit(s) of 'visitor' appear in more than one group" in w for w in r.warnings
+    )
     kept = both[~both["visitor"].isin(bad["visitor"])]
     units = kept.groupby(["visitor", "checkout"])["basket"].mean()
     assert sum(g.n for g in r.groups) == len(units)

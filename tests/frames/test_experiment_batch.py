@@ -244,7 +244,9 @@ def test_compare_cluster_leaves_out_units_in_both_arms():
     got = both.tinfer.compare(
         "basket", by="arm", within="country", groups=GROUPS, cluster="visitor"
     )
-    assert any(f"{len(bad)} unit(s) of 'visitor' appear in more than one group" in w for w in got.warnings)
+    assert any(
+        f"{len(bad)} unit(s) of 'visitor' appear in more than one group" in w for w in got.warnings
+    )
     # reference: pandas groupby mean per unit after dropping the visitors seen in both arms
     kept = both[~both["visitor"].isin(bad)]
     units = kept.groupby(["country", "arm", "visitor"], as_index=False)["basket"].mean()
