@@ -625,3 +625,31 @@ def test_covariate_must_be_a_column_of_its_own():
     for opts in ({"covariate": "spend"}, {"covariate": "country"}):
         with pytest.raises(tinfer.ParameterError, match="covariate="):
             df.tinfer.compare("spend", by="arm", within="country", groups=GROUPS, **opts)
+
+
+@pytest.mark.filterwarnings("ignore::tinfer.SmallSegmentWarning")  # one-row segments
+def test_cluster_with_many_large_keys_does_not_overflow():
+    rng = np.random.default_rng(3)
+    n = 20_000
+    df = pd.DataFrame(
+        {
+            "k1": rng.integers(0, 10**12, n),  # wide keys: almost every row its own level
+            "k2": rng.integers(0, 10**12, n),
+            "k3": rng.integers(0, 10**12, n),
+            "arm": rng.choice(list(GROUPS), n),
+            "visitor": rng.integers(0, 10**15, n),
+            "basket": rng.normal(40.0, 5.0, n),
+        }
+    )
+    df.loc[: n // 2, ["k1", "k2", "k3"]] = [1, 2, 3]  # half the rows in one segment
+    got = df.tinfer.compare(
+        "basket", by="arm", within=["k1", "k2", "k3"], groups=GROUPS, cluster="visitor"
+    )
+    means = df.groupby(["k1", "k2", "k3", "arm", "visitor"])["basket"].mean().reset_index()
+    ref = means.tinfer.compare("basket", by="arm", within=["k1", "k2", "k3"], groups=GROUPS)
+    # reference: compare on a manual pandas groupby of the per-unit means
+    a, b = got.to_frame(), ref.to_frame()
+    keys = ["k1", "k2", "k3"]
+    a, b = a.sort_values(keys).reset_index(drop=True), b.sort_values(keys).reset_index(drop=True)
+    np.testing.assert_array_equal(a[keys].to_numpy(), b[keys].to_numpy())
+    np.testing.assert_allclose(a["estimate"], b["estimate"], rtol=1e-12, equal_nan=True)

@@ -10,6 +10,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Hashable, Sequence
 
 import numpy as np
@@ -19,6 +20,7 @@ from ..core.comoments import Adjusted, Comoments, adjusted_arms, grouped_comomen
 from ..errors import DataError, ParameterError
 from .cluster import both_arms_note
 from .columns import column, reject_inf, to_float
+from .levels import combine_codes, key_codes
 
 Spec = tuple[str, tuple, str]
 
@@ -26,56 +28,105 @@ Spec = tuple[str, tuple, str]
 def unit_frame(
     df: pd.DataFrame, keys: list, by, cluster, specs: list[Spec], covariate
 ) -> tuple[pd.DataFrame, list[Spec], list[str]]:
-    """One row per (segments, arm, unit): the frame, specs that read it, and the notes."""
+    """One row per (segments, arm, unit): the frame, specs that read it, and the notes.
+
+    Value columns (and the covariate) are averaged over each unit's rows, skipping missing
+    values; the two columns of a ratio metric are summed over the rows that have both. The
+    group key is one integer per row (segment, arm and unit codes in mixed radix), so the
+    whole table takes a factorisation and a few ``numpy.bincount`` passes.
+    """
     if cluster in (*keys, by, covariate) or any(cluster in cols for _, cols, _ in specs):
         raise ParameterError(f"cluster={cluster!r} must be a column of its own.")
     group_cols = [*keys, *([by] if by is not None else []), cluster]
     t = "__t"  # a prefix for the frame's own columns that no kept column name starts with
     while any(str(c).startswith(t) for c in (*group_cols, covariate)):
         t += "_"
-    data = {f"{t}k{i}": column(df, c).to_numpy() for i, c in enumerate(group_cols)}
-    mean_cols, sum_cols, new_specs = [], [], []
+    parts = [key_codes(column(df, c)) for c in group_cols]
+    sizes = [len(p[1]) for p in parts]
+    unit_code = parts[-1][0]
+    head = _combined([p[0] for p in parts[:-1]], sizes[:-1]) if len(parts) > 1 else None
+    ok = unit_code >= 0 if head is None else (unit_code >= 0) & (head >= 0)
+    notes: list[str] = []
+    if by is not None:
+        arm = parts[len(keys)][0]
+        pairs = unit_code[ok].astype(np.int64) * sizes[-2] + arm[ok]
+        if sizes[-1] * sizes[-2] <= 4 * len(df) + 10_000_000:  # a table of unit x arm counts
+            seen = np.bincount(pairs, minlength=sizes[-1] * sizes[-2]).reshape(sizes[-1], -1)
+            multi = (seen > 0).sum(axis=1) > 1
+        else:
+            multi = np.bincount(pd.unique(pairs) // sizes[-2], minlength=sizes[-1]) > 1
+        if multi.any():
+            ok &= ~multi[np.where(unit_code >= 0, unit_code, 0)]
+            notes.append(both_arms_note(int(multi.sum()), cluster))
+    full = unit_code[ok].astype(np.int64)
+    if head is not None:
+        if (int(head.max(initial=0)) + 1) * sizes[-1] >= 2**62:  # compact first: no overflow
+            head = _combined([head, np.zeros_like(head)], [2**40, 1])
+        full += head[ok].astype(np.int64) * sizes[-1]
+    group, uniq = pd.factorize(full)
+    n_units = len(uniq)
+    first = np.empty(n_units, dtype=np.intp)  # each unit's first row, for its key values
+    first[group[::-1]] = np.flatnonzero(ok)[::-1]
+    out: dict = {c: column(df, c).iloc[first].to_numpy() for c in group_cols}
+    for c in group_cols:
+        if isinstance(column(df, c).dtype, pd.CategoricalDtype):
+            out[c] = pd.Categorical(out[c], dtype=column(df, c).dtype)
+    new_specs = []
     for j, (name, cols, kind) in enumerate(specs):
         if kind == "ratio":
-            y, x = (to_float(column(df, c), f"Column {c!r}") for c in cols)
+            y, x = (to_float(column(df, c), f"Column {c!r}")[ok] for c in cols)
             both = ~(np.isnan(y) | np.isnan(x))
-            data[f"{t}n{j}"] = np.where(both, y, np.nan)
-            data[f"{t}d{j}"] = np.where(both, x, np.nan)
-            sum_cols += [f"{t}n{j}", f"{t}d{j}"]
+            out[f"{t}n{j}"], out[f"{t}d{j}"] = _unit_sums((y, x), both, group, n_units)
             new_specs.append((name, (f"{t}n{j}", f"{t}d{j}"), kind))
         else:
-            data[f"{t}v{j}"] = to_float(column(df, cols[0]), f"Column {cols[0]!r}")
-            mean_cols.append(f"{t}v{j}")
+            v = to_float(column(df, cols[0]), f"Column {cols[0]!r}")[ok]
+            out[f"{t}v{j}"] = _unit_mean(v, group, n_units)
             new_specs.append((name, (f"{t}v{j}",), kind))
     if covariate is not None:
-        data[f"{t}cov"] = to_float(column(df, covariate), f"Column {covariate!r}")
-        mean_cols.append(f"{t}cov")
-    frame = pd.DataFrame(data)
-    names = list(data)[: len(group_cols)]
-    unit = names[-1]
-    notes = []
-    lost = int(frame[names].isna().any(axis=1).sum())
-    frame = frame.dropna(subset=names)
-    if by is not None:
-        arms = frame.groupby(unit, sort=False, observed=True)[names[-2]].nunique()
-        both = arms.index[arms > 1]
-        if len(both):
-            frame = frame[~frame[unit].isin(both)]
-            notes.append(both_arms_note(len(both), cluster))
-    grouped = frame.groupby(names, sort=False, observed=True)
-    parts = []
-    if mean_cols:
-        parts.append(grouped[mean_cols].mean())
-    if sum_cols:
-        parts.append(grouped[sum_cols].sum(min_count=1))
-    units = pd.concat(parts, axis=1).reset_index()
-    units = units.rename(columns=dict(zip(names[:-1], group_cols[:-1], strict=True)))
-    if covariate is not None:
-        units = units.rename(columns={f"{t}cov": covariate})
-    notes.insert(0, unit_note(cluster, len(frame), len(units), bool(mean_cols), bool(sum_cols)))
+        cov = to_float(column(df, covariate), f"Column {covariate!r}")[ok]
+        out[covariate] = _unit_mean(cov, group, n_units)
+    kinds = [kind for _, _, kind in specs]
+    averaged = covariate is not None or any(k != "ratio" for k in kinds)
+    rows = int(ok.sum())
+    notes.insert(0, unit_note(cluster, rows, n_units, averaged, "ratio" in kinds))
+    lost = int((unit_code < 0).sum() if head is None else ((unit_code < 0) | (head < 0)).sum())
     if lost:
         notes.append(f"{lost:,} row(s) with a missing {cluster!r} or segment key were not used.")
-    return units, new_specs, notes
+    return pd.DataFrame(out), new_specs, notes
+
+
+def _combined(codes: list[np.ndarray], sizes: list[int]) -> np.ndarray:
+    """One code per row for several key codes (-1 where any is missing), below 2**62 / n.
+
+    Mixed radix when the product of the level counts is small; otherwise compacted after
+    each key, so that no product of many large keys overflows.
+    """
+    if math.prod(sizes) < 2**40:
+        return combine_codes(codes, sizes)[0]
+    out = pd.factorize(codes[0])[0].astype(np.int64)
+    for c, k in zip(codes[1:], sizes[1:], strict=True):
+        step = np.where((out >= 0) & (c >= 0), out * k + c, -1)
+        out = pd.factorize(step, use_na_sentinel=False)[0].astype(np.int64)
+        out[step < 0] = -1
+    return out
+
+
+def _unit_mean(v: np.ndarray, group: np.ndarray, n: int) -> np.ndarray:
+    """Mean per unit over its non-missing values (NaN for a unit with none)."""
+    fin = ~np.isnan(v)
+    total = np.bincount(group[fin], weights=v[fin], minlength=n)
+    count = np.bincount(group[fin], minlength=n)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.where(count > 0, total / np.maximum(count, 1), np.nan)
+
+
+def _unit_sums(cols, both: np.ndarray, group: np.ndarray, n: int):
+    """Sums per unit over the rows where both columns are present (NaN for a unit with none)."""
+    count = np.bincount(group[both], minlength=n)
+    return tuple(
+        np.where(count > 0, np.bincount(group[both], weights=c[both], minlength=n), np.nan)
+        for c in cols
+    )
 
 
 def unit_note(cluster, rows: int, units: int, averaged: bool, summed: bool) -> str:

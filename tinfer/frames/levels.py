@@ -113,6 +113,8 @@ def key_codes(series: pd.Series) -> tuple[np.ndarray, np.ndarray, bool]:
         fast = integer_codes(series.to_numpy())
         if fast is not None:
             return fast[0], fast[1], False
+    if series.dtype == np.bool_:  # numpy booleans cannot be missing
+        return series.to_numpy().astype(np.intp), np.array([False, True], dtype=object), False
     try:
         codes, uniques = pd.factorize(series, sort=True)
     except TypeError as exc:  # lists, dicts or sets in the column
