@@ -24,6 +24,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from . import parallel
 from .summary import Summary
 
 #: The fields of :class:`Comoments`, in order.
@@ -140,36 +141,49 @@ def grouped_comoments(
     if counts is None:
         counts = np.bincount(c, minlength=n_groups)
     n = counts.astype(np.float64)
-    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-        sum_y = np.bincount(c, weights=y, minlength=n_groups)
-        sum_x = np.bincount(c, weights=x, minlength=n_groups)
-        if finite_only and not (np.isfinite(sum_y).all() and np.isfinite(sum_x).all()):
-            return None
-        safe = np.where(n > 0, n, 1.0)
-        my0, mx0 = sum_y / safe, sum_x / safe
-        dy = np.take(my0, c)
-        np.subtract(y, dy, out=dy)
-        dx = np.take(mx0, c)
-        np.subtract(x, dx, out=dx)
-        s1y = np.bincount(c, weights=dy, minlength=n_groups)
-        s1x = np.bincount(c, weights=dx, minlength=n_groups)
-        sxy = np.bincount(c, weights=dx * dy, minlength=n_groups)
-        np.multiply(dy, dy, out=dy)
-        syy = np.bincount(c, weights=dy, minlength=n_groups)
-        np.multiply(dx, dx, out=dx)
-        sxx = np.bincount(c, weights=dx, minlength=n_groups)
+    safe = np.where(n > 0, n, 1.0)
+
+    def sums(v):
+        with np.errstate(over="ignore", invalid="ignore"):
+            return np.bincount(c, weights=v, minlength=n_groups)
+
+    def deviations(v, total):
+        """v minus its group's first mean; the deviations' sum and sum of squares."""
+        with np.errstate(invalid="ignore", over="ignore"):
+            dev = np.take(total / safe, c)
+            np.subtract(v, dev, out=dev)
+            s1 = np.bincount(c, weights=dev, minlength=n_groups)
+            sq = np.bincount(c, weights=np.square(dev), minlength=n_groups)
+        return dev, s1, sq
+
+    sum_y, sum_x = both(sums, y, x, c.size)
+    if finite_only and not (np.isfinite(sum_y).all() and np.isfinite(sum_x).all()):
+        return None
+    (dy, s1y, syy), (dx, s1x, sxx) = both(deviations, (y, sum_y), (x, sum_x), c.size)
+    with np.errstate(invalid="ignore", over="ignore"):
+        np.multiply(dx, dy, out=dx)
+        sxy = np.bincount(c, weights=dx, minlength=n_groups)
         del dx, dy
         cy, cx = s1y / safe, s1x / safe
-        my = np.where(n > 0, my0 + cy, np.nan)
-        mx = np.where(n > 0, mx0 + cx, np.nan)
         return Comoments(
             n,
-            my,
-            mx,
+            np.where(n > 0, sum_y / safe + cy, np.nan),
+            np.where(n > 0, sum_x / safe + cx, np.nan),
             np.maximum(syy - s1y * cy, 0.0),
             np.maximum(sxx - s1x * cx, 0.0),
             sxy - s1x * cy,
         )
+
+
+def both(func, first, second, size: int):
+    """``(func(*first), func(*second))``, on two threads for long inputs (numpy's bincount
+    and ufuncs release the GIL for much of their work)."""
+    a = first if isinstance(first, tuple) else (first,)
+    b = second if isinstance(second, tuple) else (second,)
+    if size < 1_000_000 or parallel.workers() < 2:
+        return func(*a), func(*b)
+    other = parallel.pool(2).submit(func, *b)
+    return func(*a), other.result()
 
 
 def ratio_summary(c: Comoments) -> Summary:

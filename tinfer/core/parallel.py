@@ -15,7 +15,8 @@ import numpy as np
 
 
 @functools.cache
-def _pool(workers: int) -> ThreadPoolExecutor:
+def pool(workers: int) -> ThreadPoolExecutor:
+    """A shared pool of ``workers`` threads."""
     return ThreadPoolExecutor(max_workers=workers, thread_name_prefix="tinfer")
 
 
@@ -48,7 +49,7 @@ def chunked(
         out[s] = func(s)
 
     if size >= threaded and n >= 2 and len(slices) > 1:
-        list(_pool(n).map(run, slices))
+        list(pool(n).map(run, slices))
     else:
         for s in slices:
             run(s)

@@ -136,7 +136,7 @@ def _moments(df, specs, g, key_ok, counts, n_groups) -> tuple[np.ndarray, ...]:
     g_ok = g if key_ok is None else g[key_ok]
     for j, (_, cols, kind) in enumerate(specs):
         if kind == "ratio":
-            co, use = pair_moments(df, cols, g, key_ok, n_groups)
+            co, use = pair_moments(df, cols, g, key_ok, n_groups, counts)
             s = ratio_summary(co)
             n[j], mean[j], lo[j], ssd[j] = s.n, s.mean, 0.0, s.ssd
             miss[j] = _lost(g, use, key_ok, n_groups)
@@ -217,7 +217,7 @@ def compare_frame(
         n, mean, lo, ssd, miss = (pick(v) for v in parts)
     else:
         n, mean, lo, ssd, miss = _adjusted(
-            df, specs, covariate, arms, key_ok, n_groups, cols, pick, notes
+            df, specs, covariate, arms, key_ok, counts, cols, pick, notes
         )
     result = from_cube(
         design, n, mean, ssd, present=None, segments=seg.values(keep),
@@ -258,9 +258,9 @@ def _checked(df, columns, by, within, paired, pairwise, covariate, ratio, func):
     return specs, keys
 
 
-def _adjusted(df, specs, covariate, arms: _Arms, key_ok, n_groups, cols, pick, notes):
+def _adjusted(df, specs, covariate, arms: _Arms, key_ok, counts, cols, pick, notes):
     """n, mean, mean_lo, ssd, missing of the compared arms after the pre-period adjustment."""
-    g = arms.codes
+    g, n_groups = arms.codes, counts.size
 
     def compared() -> np.ndarray:
         return np.isin(g % arms.width, cols) & (g >= 0)
@@ -268,7 +268,7 @@ def _adjusted(df, specs, covariate, arms: _Arms, key_ok, n_groups, cols, pick, n
     fields, missing = [], []
     for _, (value,), _ in specs:
         check_covariate(df, value, covariate, compared)
-        co, use = pair_moments(df, (value, covariate), g, key_ok, n_groups)
+        co, use = pair_moments(df, (value, covariate), g, key_ok, n_groups, counts)
         missing.append(_lost(g, use, key_ok, n_groups))
         fields.append(co)
     co = Comoments(*(np.stack([getattr(c, f) for c in fields]) for f in FIELDS))

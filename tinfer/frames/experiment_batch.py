@@ -17,10 +17,11 @@ import numpy as np
 import pandas as pd
 
 from ..core.comoments import Adjusted, Comoments, adjusted_arms, grouped_comoments
+from ..core.grouped import integer_codes
 from ..errors import DataError, ParameterError
 from .cluster import both_arms_note
 from .columns import column, reject_inf, to_float
-from .levels import combine_codes, key_codes
+from .levels import combine_codes, key_codes, ungroupable
 
 Spec = tuple[str, tuple, str]
 
@@ -41,7 +42,8 @@ def unit_frame(
     t = "__t"  # a prefix for the frame's own columns that no kept column name starts with
     while any(str(c).startswith(t) for c in (*group_cols, covariate)):
         t += "_"
-    parts = [key_codes(column(df, c)) for c in group_cols]
+    parts = [key_codes(column(df, c)) for c in group_cols[:-1]]
+    parts.append(_unit_codes(column(df, cluster)))
     sizes = [len(p[1]) for p in parts]
     unit_code = parts[-1][0]
     head = _combined([p[0] for p in parts[:-1]], sizes[:-1]) if len(parts) > 1 else None
@@ -95,6 +97,19 @@ def unit_frame(
     return pd.DataFrame(out), new_specs, notes
 
 
+def _unit_codes(col: pd.Series) -> tuple[np.ndarray, np.ndarray, bool]:
+    """Codes of the unit column (-1 for missing): compact integers as they are, anything
+    else hashed in order of appearance (units need no sorted order)."""
+    fast = integer_codes(col.to_numpy()) if col.dtype.kind in "iu" else None
+    if fast is not None:
+        return fast[0], fast[1], False
+    try:
+        codes, uniques = pd.factorize(col)
+    except TypeError as exc:  # lists, dicts or sets in the column
+        raise ungroupable(col.name, exc) from None
+    return codes.astype(np.intp, copy=False), np.asarray(uniques), bool((codes < 0).any())
+
+
 def _combined(codes: list[np.ndarray], sizes: list[int]) -> np.ndarray:
     """One code per row for several key codes (-1 where any is missing), below 2**62 / n.
 
@@ -140,13 +155,13 @@ def unit_note(cluster, rows: int, units: int, averaged: bool, summed: bool) -> s
 
 
 def pair_moments(
-    df: pd.DataFrame, cols: tuple, g: np.ndarray, key_ok, n_groups: int
+    df: pd.DataFrame, cols: tuple, g: np.ndarray, key_ok, n_groups: int, counts=None
 ) -> tuple[Comoments, np.ndarray]:
     """Co-moments per group of the rows where both columns are finite; and those rows (None
-    when that is every row)."""
+    when that is every row). ``counts``: the rows per group, when every row has its key."""
     y, x = (to_float(column(df, c), f"Column {c!r}") for c in cols)
     if key_ok is None:  # the common case: one pass shows that every value is finite
-        co = grouped_comoments(y, x, g, n_groups, finite_only=True)
+        co = grouped_comoments(y, x, g, n_groups, counts=counts, finite_only=True)
         if co is not None:
             return co, None
     reject_inf([y, x], cols)
