@@ -215,6 +215,7 @@ class Adjusted:
     theta: np.ndarray
     removed: np.ndarray
     adjusted: np.ndarray  # False where x does not vary within the arms (theta 0: unadjusted)
+    centre: np.ndarray  # the mean of x over both arms
 
 
 def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
@@ -246,4 +247,11 @@ def adjusted_arms(a: Comoments, b: Comoments) -> Adjusted:
         ssd = np.maximum(c.syy - 2.0 * theta * c.sxy + theta * theta * c.sxx, 0.0)
         return Summary(np.asarray(c.n), np.asarray(mean), np.asarray(ssd))
 
-    return Adjusted(arm(a), arm(b), np.asarray(theta), np.asarray(removed), np.asarray(adjusted))
+    return Adjusted(
+        arm(a),
+        arm(b),
+        np.asarray(theta),
+        np.asarray(removed),
+        np.asarray(adjusted),
+        np.asarray(centre),
+    )

@@ -15,6 +15,7 @@ from collections.abc import Hashable, Sequence
 import numpy as np
 import pandas as pd
 
+from ..core.comoments import Comoments, adjusted_arms
 from ..errors import DataError
 from .batch import choose_arms
 from .columns import column, to_float
@@ -41,17 +42,12 @@ def adjust(
             "(for example with the overall pre-period mean, a stated rule) or drop those rows."
         )
     ok = in_arms & ~np.isnan(y)
-    sxy = sxx = syy = 0.0
-    for k in (first, second):
-        m = ok & (codes == k)
-        dx, dy = x[m] - x[m].mean(), y[m] - y[m].mean()
-        sxy, sxx, syy = sxy + dx @ dy, sxx + dx @ dx, syy + dy @ dy
-    if not sxx > 0:
+    adj = adjusted_arms(*(Comoments.of(y[ok & (codes == k)], x[ok & (codes == k)])
+                          for k in (first, second)))  # fmt: skip
+    if not adj.adjusted:
         raise DataError(f"Column {covariate!r} does not vary within the groups; no adjustment.")
-    theta = sxy / sxx
-    centre = x[ok].mean()
-    adjusted = np.where(ok, y - theta * (x - centre), np.nan)
-    removed = (sxy * sxy / sxx) / syy if syy > 0 else 0.0  # share of within-group variance
+    theta, removed = float(adj.theta), float(adj.removed)  # removed: within-group share
+    adjusted = np.where(ok, y - theta * (x - float(adj.centre)), np.nan)
     notes = (
         f"Pre-period adjustment (CUPED) by {covariate!r}, theta {theta:.4g}: it removed "
         f"{100 * removed:.0f}% of the variance, so the same precision without it would have "
