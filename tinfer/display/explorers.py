@@ -60,7 +60,11 @@ def slider(value: float, lo: float, hi: float, step: float, digits: int, descrip
 
 
 class Explorer(w.VBox):
-    """Base explorer: a VBox whose view is an HTML widget, with a static HTML fallback."""
+    """Base explorer: a VBox whose view is an HTML widget, with a static HTML fallback.
+
+    Each explorer defines ``options()`` (the current settings of its controls, a dict) and
+    ``_render(options)`` (the result and its card for those settings); the base calls them.
+    """
 
     def _start(self, controls: list, rows: list) -> None:
         """Lay out ``rows``, the message line and the view; watch ``controls``."""
@@ -100,14 +104,6 @@ class Explorer(w.VBox):
 
     def _on_change(self, change=None) -> None:
         self._show(self.options())
-
-    def options(self) -> dict[str, Any]:  # pragma: no cover - every explorer overrides it
-        """The current settings of the controls (each explorer defines its own)."""
-        raise NotImplementedError(f"{type(self).__name__} must define options()")
-
-    def _render(self, options: dict[str, Any]):  # pragma: no cover - overridden
-        """The (result, card) for ``options`` (each explorer defines its own)."""
-        raise NotImplementedError(f"{type(self).__name__} must define _render()")
 
 
 class ResultExplorer(Explorer):
