@@ -18,12 +18,12 @@ Run: ``.venv/bin/python benchmarks/bench_compare.py`` (about a minute; ``--rows`
 from __future__ import annotations
 
 import argparse
-import time
 import tracemalloc
 
 import numpy as np
 import pandas as pd
 from scipy import special, stats
+from timing import best
 
 import tinfer  # noqa: F401  (registers the accessor)
 
@@ -71,15 +71,6 @@ def scipy_loop(df: pd.DataFrame):
     return out
 
 
-def best_of(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
-
-
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--rows", type=int, default=10_000_000)
@@ -103,15 +94,15 @@ def main() -> None:
     # interleaved, best of `repeat` each, so that load from other processes hits both alike
     t_cmp, t_np = np.inf, np.inf
     for _ in range(args.repeat):
-        t_cmp = min(t_cmp, best_of(lambda: run_compare(df), 1))
-        t_np = min(t_np, best_of(lambda: numpy_pass(df, args.segments), 1))
+        t_cmp = min(t_cmp, best(lambda: run_compare(df), 1))
+        t_np = min(t_np, best(lambda: numpy_pass(df, args.segments), 1))
     print(f"compare               {t_cmp:8.3f} s  (best of {args.repeat})")
     print(f"numpy pass            {t_np:8.3f} s  (best of {args.repeat})")
     print(f"ratio compare / numpy {t_cmp / t_np:8.2f}   (target <= 1.3)")
 
     k = min(args.loop_segments, args.segments)
     sub = df[df["store"] < k]
-    t_sub = best_of(lambda: scipy_loop(sub), 1)
+    t_sub = best(lambda: scipy_loop(sub), 1)
     t_loop = t_sub * args.segments / k
     print(f"scipy ttest_ind loop  {t_loop:8.3f} s  (timed on {k} segments, {t_sub:.3f} s, "
           f"scaled linearly to {args.segments:,})")  # fmt: skip
@@ -132,10 +123,10 @@ def main() -> None:
     # the table a user reads: compare, then to_frame with the noncentral-t effect intervals
     t_tab, t_np2, t_ci = np.inf, np.inf, np.inf
     for _ in range(args.repeat):
-        t_tab = min(t_tab, best_of(lambda: run_compare(df).to_frame(), 1))
-        t_np2 = min(t_np2, best_of(lambda: numpy_pass(df, args.segments), 1))
+        t_tab = min(t_tab, best(lambda: run_compare(df).to_frame(), 1))
+        t_np2 = min(t_np2, best(lambda: numpy_pass(df, args.segments), 1))
         fresh = run_compare(df)
-        t_ci = min(t_ci, best_of(lambda fresh=fresh: fresh.effect_ci, 1))
+        t_ci = min(t_ci, best(lambda fresh=fresh: fresh.effect_ci, 1))
     print(f"compare + to_frame    {t_tab:8.3f} s  (best of {args.repeat}, effect intervals "
           "included)")  # fmt: skip
     print(f"ratio table / numpy   {t_tab / t_np2:8.2f}   (target <= 1.5)")

@@ -15,23 +15,14 @@ Run: ``.venv/bin/python benchmarks/bench_evidence.py`` (``--rows``, ``--segments
 from __future__ import annotations
 
 import argparse
-import time
 
 import numpy as np
 import pandas as pd
 from scipy import special
+from timing import best
 
 import tinfer
 from tinfer.core import distribution as dist
-
-
-def best(fn, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - start)
-    return min(times)
 
 
 def main() -> None:

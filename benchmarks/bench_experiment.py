@@ -16,10 +16,10 @@ Run: ``.venv/bin/python benchmarks/bench_experiment.py`` (``--rows``, ``--segmen
 from __future__ import annotations
 
 import argparse
-import time
 
 import numpy as np
 import pandas as pd
+from timing import best
 
 import tinfer  # noqa: F401  (registers the accessor)
 
@@ -40,15 +40,6 @@ def make_data(rows: int, segments: int, seed: int = 0) -> pd.DataFrame:
             "pre_revenue": pre,
         }
     )
-
-
-def best(fn, repeat: int = 3) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
 
 
 def main() -> None:

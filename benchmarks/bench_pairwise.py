@@ -19,11 +19,11 @@ Run: ``.venv/bin/python benchmarks/bench_pairwise.py`` (``--rows``, ``--segments
 from __future__ import annotations
 
 import argparse
-import time
 
 import numpy as np
 import pandas as pd
 from scipy import stats
+from timing import best
 
 import tinfer  # noqa: F401  (registers the accessor)
 
@@ -41,15 +41,6 @@ def make_data(rows: int, segments: int, seed: int = 0) -> pd.DataFrame:
             "basket": y,
         }
     )
-
-
-def best(fn, repeat: int = 3) -> float:
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return min(times)
 
 
 def by_hand(df: pd.DataFrame) -> None:
