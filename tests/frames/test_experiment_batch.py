@@ -653,3 +653,17 @@ def test_cluster_with_many_large_keys_does_not_overflow():
     a, b = a.sort_values(keys).reset_index(drop=True), b.sort_values(keys).reset_index(drop=True)
     np.testing.assert_array_equal(a[keys].to_numpy(), b[keys].to_numpy())
     np.testing.assert_allclose(a["estimate"], b["estimate"], rtol=1e-12, equal_nan=True)
+
+
+def test_experiment_options_leave_the_callers_frame_untouched():
+    df = _days()
+    df.loc[5, "pre"] = np.nan
+    df.loc[5, "arm"] = "legacy"  # outside the compared groups: allowed
+    before = df.copy()
+    df.tinfer.compare(
+        "basket", by="arm", within="country", groups=GROUPS, cluster="visitor", covariate="pre"
+    )
+    df.tinfer.compare(by="arm", groups=GROUPS, ratio=("revenue", "sessions"), cluster="visitor")
+    df.tinfer.two_sample(by="arm", groups=GROUPS, ratio=("revenue", "sessions"), relative=True)
+    # reference: pandas' own equality check on a copy taken before (common practice)
+    pd.testing.assert_frame_equal(df, before)
